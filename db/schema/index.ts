@@ -1,0 +1,4 @@
+export * from './fleet';
+export * from './telemetry';
+export * from './health';
+export * from './alerts';

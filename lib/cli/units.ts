@@ -1,0 +1,44 @@
+/**
+ * `npx millrace units import FLEET.json` (contract, section 4): registers or
+ * updates sites and units, all or nothing. Every problem is printed with its
+ * path and the exit status is 2 when anything is invalid.
+ */
+import { fleetSchema } from '../contract/nameplate';
+import { AppError } from '../errors/app-error';
+import { findFleetProblems, upsertFleet } from '../fleet/queries';
+import { readJsonFile } from './json-file';
+import { openCliDatabase } from './database';
+import type { CliIo } from './main';
+
+export async function run(args: string[], io: CliIo): Promise<number> {
+  const [sub, file, ...extra] = args;
+  if (sub !== 'import') {
+    throw new AppError('bad-input', 'cli', `expected "units import FLEET.json", got "units ${args.join(' ')}"`);
+  }
+  if (file === undefined) throw new AppError('bad-input', 'cli', 'units import: the fleet file is missing (FLEET.json)');
+  if (extra.length > 0) throw new AppError('bad-input', 'cli', `units import: unexpected argument "${extra[0]}"`);
+
+  const parsed = await readJsonFile(file, fleetSchema);
+  if (!parsed.ok) {
+    io.stderr.write(`${file}: ${parsed.problems.length} problem${parsed.problems.length > 1 ? 's' : ''}, nothing was changed\n`);
+    for (const problem of parsed.problems) io.stderr.write(`  ${problem}\n`);
+    return 2;
+  }
+  const handle = await openCliDatabase();
+  try {
+    const problems = await findFleetProblems({ db: handle.db, fleet: parsed.value });
+    if (problems.length > 0) {
+      io.stderr.write(`${file}: ${problems.length} problem${problems.length > 1 ? 's' : ''}, nothing was changed\n`);
+      for (const problem of problems) io.stderr.write(`  ${problem}\n`);
+      return 2;
+    }
+    const result = await upsertFleet({ db: handle.db, fleet: parsed.value });
+    io.stdout.write(
+      `${file}: sites ${result.sitesCreated} added, ${result.sitesUpdated} updated; ` +
+        `units ${result.unitsCreated} added, ${result.unitsUpdated} updated (${handle.location})\n`,
+    );
+    return 0;
+  } finally {
+    await handle.close();
+  }
+}
