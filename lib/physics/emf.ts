@@ -5,7 +5,7 @@
  * synchronous generator (e.g. Chapman, Electric Machinery Fundamentals,
  * chapter on synchronous generators; from memory).
  */
-import { abs, add, complex, mul, polar } from './complex';
+import { abs, add, complex, mul } from './complex';
 
 /** √3: ratio of line-to-line to line-to-neutral voltage in a balanced star. */
 export const SQRT3 = Math.sqrt(3);
@@ -43,7 +43,7 @@ export function recoverPhaseEmf(p: PhaseCircuit): number {
   if (p.currentA === 0) return p.phaseVolts;
   const sinPhi = Math.sqrt(Math.max(0, 1 - p.powerFactor * p.powerFactor));
   // Current lags the terminal voltage (reference at angle 0) by φ.
-  const current = polar(p.currentA, 0).re === 0 ? complex(0) : complex(p.currentA * p.powerFactor, -p.currentA * sinPhi);
+  const current = complex(p.currentA * p.powerFactor, -p.currentA * sinPhi);
   return abs(add(complex(p.phaseVolts), mul(current, complex(p.ohmPerPhase, p.reactanceOhm))));
 }
 
