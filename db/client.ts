@@ -4,12 +4,14 @@
  * guarded by a lock file. Both get the same drizzle schema and the same
  * committed migrations.
  */
-import { resolve } from 'node:path';
+import { existsSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { PGlite } from '@electric-sql/pglite';
 import type { PgDatabase, PgQueryResultHKT } from 'drizzle-orm/pg-core';
 import type postgres from 'postgres';
 import { AppError } from '../lib/errors/app-error';
+import { getConfig } from '../lib/config/env';
 import * as schema from './schema';
 import { acquireDataDirLock } from './lock';
 import { ensureMonthlyPartitions, monthStartMs, nextMonthStartMs } from './partitions';
@@ -47,7 +49,11 @@ export interface OpenDatabaseOptions {
   maxConnections?: number;
 }
 
-export const MIGRATIONS_FOLDER = resolve(fileURLToPath(new URL('.', import.meta.url)), 'migrations');
+/** The committed migrations; beside this file, or under the working folder when bundled. */
+export function migrationsFolder(): string {
+  const beside = join(dirname(fileURLToPath(import.meta.url)), 'migrations');
+  return existsSync(join(beside, 'meta', '_journal.json')) ? beside : resolve('db', 'migrations');
+}
 
 /** Months of partitions made ahead of the current one. */
 export const PARTITION_MONTHS_AHEAD = 3;
@@ -108,7 +114,7 @@ async function openPglite(dataDir: string): Promise<DatabaseHandle> {
 export async function migrateDatabase(handle: DatabaseHandle): Promise<void> {
   if (handle.backend === 'pglite') {
     const { migrate } = await import('drizzle-orm/pglite/migrator');
-    await migrate(handle.db as never, { migrationsFolder: MIGRATIONS_FOLDER });
+    await migrate(handle.db as never, { migrationsFolder: migrationsFolder() });
   } else {
     const { migrate } = await import('drizzle-orm/postgres-js/migrator');
     const { drizzle } = await import('drizzle-orm/postgres-js');
@@ -117,7 +123,7 @@ export async function migrateDatabase(handle: DatabaseHandle): Promise<void> {
     const sql = postgresFactory(handle.url!, { max: 1, onnotice: () => {}, connect_timeout: 10 });
     try {
       await sql`select pg_advisory_lock(7271501)`;
-      await migrate(drizzle(sql, { casing: 'snake_case' }), { migrationsFolder: MIGRATIONS_FOLDER });
+      await migrate(drizzle(sql, { casing: 'snake_case' }), { migrationsFolder: migrationsFolder() });
       await sql`select pg_advisory_unlock(7271501)`;
     } finally {
       await sql.end({ timeout: 5 });
@@ -148,19 +154,22 @@ export async function openDatabase(options: OpenDatabaseOptions = {}): Promise<D
   return handle;
 }
 
+function optionsFromConfig(): OpenDatabaseOptions {
+  const config = getConfig();
+  return { url: config.DATABASE_URL, dataDir: config.DATA_DIR };
+}
+
 type GlobalWithDb = typeof globalThis & { __millraceDatabase?: Promise<DatabaseHandle> };
 
 /**
  * The process-wide database. The custom server opens it before Next starts and
- * Next's bundled route code finds the same handle here (one PGlite per process).
+ * Next's bundled route code finds the same handle here (one PGlite per process);
+ * opened from the configuration when nothing opened it first.
  */
 export function getDatabase(options?: OpenDatabaseOptions): Promise<DatabaseHandle> {
   const g = globalThis as GlobalWithDb;
   if (!g.__millraceDatabase) {
-    if (!options) {
-      throw new AppError('internal', 'db', 'the process database was not opened; the server opens it at start');
-    }
-    g.__millraceDatabase = openDatabase(options);
+    g.__millraceDatabase = openDatabase(options ?? optionsFromConfig());
     g.__millraceDatabase.catch(() => {
       delete g.__millraceDatabase;
     });

@@ -1,0 +1,84 @@
+import { loadFleetOverview } from '../lib/fleet/overview';
+import { VerdictBadge } from './_components/verdict-badge';
+import { ago } from './_components/format';
+
+export const dynamic = 'force-dynamic';
+
+export default async function FleetPage() {
+  const fleet = await loadFleetOverview();
+  const now = new Date();
+  return (
+    <>
+      <section className="summary" aria-label="fleet summary">
+        <h1>Fleet</h1>
+        <p>
+          <strong>{fleet.unitCount}</strong> unit{fleet.unitCount === 1 ? '' : 's'} on <strong>{fleet.sites.length}</strong> site
+          {fleet.sites.length === 1 ? '' : 's'} · <strong>{fleet.onlineCount}</strong> reporting ·{' '}
+          <strong>{fleet.attentionCount}</strong> needing attention
+        </p>
+        {fleet.demo && fleet.demo.status !== 'off' ? (
+          <p className="note">Demo fleet (invented sites and units): {fleet.demo.phase ?? fleet.demo.status}.</p>
+        ) : null}
+      </section>
+
+      {fleet.sites.length === 0 ? (
+        <section className="empty" data-testid="empty-fleet">
+          <h2>No units registered yet</h2>
+          <p>
+            Register sites and units with <code>npx millrace units import FLEET.json</code> (see README), then point each
+            unit&apos;s controller at the MQTT topic <code>millrace/&lt;site&gt;/&lt;unit&gt;/telemetry</code>.
+          </p>
+          <p>To see millrace with an invented demo fleet instead, start it with <code>DEMO=on</code> (the default on embedded settings).</p>
+        </section>
+      ) : (
+        fleet.sites.map((site) => (
+          <section key={site.id} className="site" data-testid={`site-${site.id}`}>
+            <h2>
+              {site.name} <span className="muted">{site.timezone}</span>
+            </h2>
+            <table>
+              <thead>
+                <tr>
+                  <th scope="col">Unit</th>
+                  <th scope="col">Kind</th>
+                  <th scope="col" className="num">Rated kW</th>
+                  <th scope="col">Link</th>
+                  <th scope="col">Last sample</th>
+                  <th scope="col">Diagnosis</th>
+                  <th scope="col" className="num" title="measured Ke, corrected for load and magnet temperature, over nameplate Ke">
+                    Ke ratio
+                  </th>
+                </tr>
+              </thead>
+              <tbody>
+                {site.units.map((unit) => (
+                  <tr key={unit.id} data-unit={unit.id}>
+                    <td>
+                      <span className="unit-id">{unit.id}</span>
+                      {unit.name ? <span className="muted"> {unit.name}</span> : null}
+                    </td>
+                    <td>{unit.kind}</td>
+                    <td className="num">{unit.ratedKw.toFixed(1)}</td>
+                    <td>
+                      <span className={`link link-${unit.presence ?? 'unknown'}`}>{unit.presence ?? 'unknown'}</span>
+                    </td>
+                    <td>{ago(unit.lastSampleTs, now)}</td>
+                    <td>
+                      <VerdictBadge verdict={unit.verdict} />
+                    </td>
+                    <td className="num">{unit.keRatio === null ? '–' : unit.keRatio.toFixed(3)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </section>
+        ))
+      )}
+      <footer className="caution">
+        A permanent-magnet generator makes voltage whenever its shaft turns, even when disconnected. Before anyone works on a
+        unit: stop and lock the rotor, isolate and prove dead, following the manufacturer&apos;s procedure, local electrical
+        codes and licensed practice.
+      </footer>
+    </>
+  );
+}

@@ -1,0 +1,31 @@
+/**
+ * The fleet list of the home page, read from this process's database.
+ */
+import { getDatabase } from '../../db/client';
+import { getComponentStates } from '../server/registry';
+import { getFleetOverview, type FleetOverviewSite } from './queries';
+
+export interface FleetOverview {
+  sites: FleetOverviewSite[];
+  unitCount: number;
+  onlineCount: number;
+  attentionCount: number;
+  /** What the demo fleet is doing, or undefined when it is not part of this process. */
+  demo?: { status: string; phase?: string };
+}
+
+/** Sites, units and their latest state, with counts for the summary line. */
+export async function loadFleetOverview(): Promise<FleetOverview> {
+  const { db } = await getDatabase();
+  const sites = await getFleetOverview({ db });
+  const units = sites.flatMap((s) => s.units);
+  const states = await getComponentStates();
+  const demo = states.demo as { status: string; phase?: string } | undefined;
+  return {
+    sites,
+    unitCount: units.length,
+    onlineCount: units.filter((u) => u.presence === 'online').length,
+    attentionCount: units.filter((u) => u.verdict !== null && u.verdict !== 'healthy' && u.verdict !== 'insufficient-data').length,
+    demo: demo ? { status: demo.status, phase: demo.phase } : undefined,
+  };
+}

@@ -1,0 +1,183 @@
+/**
+ * The whole product in one Node process (`npm start`): database, MQTT broker
+ * (embedded unless MQTT_URL is set), ingester, live diagnosis, demo fleet and
+ * the web app. On embedded defaults everything must share one process: a
+ * PGlite folder may be opened by one process only.
+ *
+ * With `--role web` only the database and the web app run (`npm run web`, as
+ * in docker-compose, where the ingester is its own service).
+ */
+import { sql } from 'drizzle-orm';
+import { loadConfig, type Config } from '../config/env';
+import { AppError } from '../errors/app-error';
+import { createLogger, type Logger } from '../log/logger';
+import { getDatabase, closeDatabase, rowsOf, type DatabaseHandle } from '../../db/client';
+import { registerComponent } from './registry';
+import { startWebServer } from './next-app';
+
+type Stoppable = { name: string; stop(): Promise<void> };
+
+async function databaseComponent(handle: DatabaseHandle) {
+  registerComponent('database', {
+    state: async () => {
+      const started = performance.now();
+      try {
+        await handle.db.execute(sql`select 1`);
+        return { status: 'ok', backend: handle.backend, location: handle.location, pingMs: Math.round(performance.now() - started) };
+      } catch (error) {
+        return { status: 'down', backend: handle.backend, location: handle.location, error: (error as Error).message };
+      }
+    },
+  });
+}
+
+async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger, stack: Stoppable[]): Promise<void> {
+  let brokerUrl = config.MQTT_URL;
+  let mqtt5 = true;
+  if (brokerUrl === undefined) {
+    const { startEmbeddedBroker } = await import('../broker/embedded');
+    const broker = await startEmbeddedBroker({ port: config.MQTT_PORT, log: log.child('broker') });
+    stack.push({ name: 'broker', stop: () => broker.close() });
+    registerComponent('broker', { state: () => ({ status: 'ok', embedded: true, url: broker.url, clients: broker.clients() }) });
+    brokerUrl = broker.url;
+    mqtt5 = false;
+  } else {
+    registerComponent('broker', { state: () => ({ status: 'ok', embedded: false, url: redactMqtt(config.MQTT_URL!) }) });
+  }
+
+  const { startIngester } = await import('../ingest/ingester');
+  const ingester = await startIngester({
+    handle,
+    brokerUrl,
+    mqtt5,
+    clientId: config.INGEST_CLIENT_ID,
+    connections: config.INGEST_CONNECTIONS,
+    batchSamples: config.INGEST_BATCH_SAMPLES,
+    batchMs: config.INGEST_BATCH_MS,
+    bufferSamples: config.INGEST_BUFFER_SAMPLES,
+    retentionDays: config.RETENTION_DAYS,
+    username: config.MQTT_USERNAME,
+    password: config.MQTT_PASSWORD,
+    log: log.child('ingest'),
+  });
+  stack.push({ name: 'ingester', stop: () => ingester.stop() });
+
+  const { startLiveDiagnosis } = await import('../diagnosis/live');
+  const diagnosis = startLiveDiagnosis({
+    db: handle.db,
+    intervalS: config.DIAGNOSIS_INTERVAL_S,
+    windowHours: config.DIAGNOSIS_WINDOW_HOURS,
+    log: log.child('diagnosis'),
+  });
+  stack.push({ name: 'diagnosis', stop: async () => diagnosis() });
+
+  if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack);
+  else registerComponent('demo', { state: () => ({ status: 'off', reason: 'DEMO=off' }) });
+}
+
+async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: string, log: Logger, stack: Stoppable[]) {
+  const { demoFleet } = await import('../simulate/demo-fleet');
+  const { startSimulator, backfill } = await import('../simulate/simulator');
+  const { upsertFleet } = await import('../fleet/queries');
+  await upsertFleet({ db: handle.db, fleet: demoFleet });
+  const simLog = log.child('demo');
+  const hasHistory = await hasSamples(handle);
+  const credentials = { username: config.MQTT_USERNAME, password: config.MQTT_PASSWORD };
+  let phase = hasHistory ? 'live' : 'backfilling history';
+  const simulator = await startSimulator({ brokerUrl, fleet: demoFleet, log: simLog, ...credentials });
+  stack.push({ name: 'demo', stop: () => simulator.stop() });
+  registerComponent('demo', { state: () => ({ status: 'ok', phase, ...simulator.state() }) });
+  if (!hasHistory) {
+    // History goes through the broker like everything else; the page works meanwhile.
+    backfill({ brokerUrl, fleet: demoFleet, days: 3, log: simLog, ...credentials })
+      .then((result) => {
+        phase = 'live';
+        simLog.info('demo history written', { ...result });
+      })
+      .catch((error: unknown) => {
+        phase = 'live (history failed)';
+        simLog.error('demo history failed', { error });
+      });
+  }
+}
+
+async function hasSamples(handle: DatabaseHandle): Promise<boolean> {
+  const rows = rowsOf<{ has: boolean }>(await handle.db.execute(sql`select exists(select 1 from telemetry_samples) as has`));
+  return rows[0]?.has === true;
+}
+
+function redactMqtt(url: string): string {
+  try {
+    const u = new URL(url);
+    if (u.password) u.password = '***';
+    return u.toString();
+  } catch {
+    return 'mqtt://(unparsable URL)';
+  }
+}
+
+/** Starts the product; resolves once it serves. Returns a function that stops it. */
+export async function startProduct({ role, env = process.env }: { role: 'all' | 'web'; env?: NodeJS.ProcessEnv }) {
+  const config = loadConfig(env);
+  const log = createLogger('server', config.LOG_LEVEL);
+  const stack: Stoppable[] = [];
+  const stop = async () => {
+    for (const part of stack.reverse()) {
+      try {
+        await part.stop();
+      } catch (error) {
+        log.warn('stop failed', { part: part.name, error });
+      }
+    }
+    await closeDatabase();
+  };
+  try {
+    const handle = await getDatabase({ url: config.DATABASE_URL, dataDir: config.DATA_DIR });
+    await databaseComponent(handle);
+    if (role === 'all') await startPipeline(config, handle, log, stack);
+    else {
+      if (handle.backend === 'pglite') {
+        log.warn('web only on the embedded database: no ingester can share its folder; use npm start, or DATABASE_URL');
+      }
+      registerComponent('ingester', { state: () => ({ status: 'off', reason: 'runs as its own process (npm run ingest)' }) });
+    }
+    const web = await startWebServer({ host: config.HOST, port: config.PORT });
+    stack.push({ name: 'web', stop: () => web.close() });
+    return { url: web.url, config, log, stop, backend: handle.backend };
+  } catch (error) {
+    await stop();
+    throw error;
+  }
+}
+
+/** Runs the product until a signal stops it; prints the URL or one line saying why it cannot start. */
+export async function runProduct(role: 'all' | 'web'): Promise<void> {
+  let running: Awaited<ReturnType<typeof startProduct>>;
+  try {
+    running = await startProduct({ role });
+  } catch (error) {
+    const message = error instanceof AppError || (error as Error).name === 'AppError' ? (error as Error).message : (error as Error).stack;
+    process.stderr.write(`millrace: ${message}\n`);
+    process.exit(2);
+  }
+  const { url, config, backend, log } = running;
+  const embedded = backend === 'pglite' ? `embedded database in ${config.DATA_DIR}` : 'PostgreSQL';
+  const broker = config.MQTT_URL ? 'MQTT broker at MQTT_URL' : `embedded MQTT broker on 127.0.0.1:${config.MQTT_PORT}`;
+  process.stdout.write(
+    `millrace is running at ${url}\n  ${role === 'all' ? `${embedded}, ${broker}, demo fleet ${config.DEMO ? 'on' : 'off'}` : `web only, ${embedded}`}\n  press Ctrl+C to stop\n`,
+  );
+  let stopping = false;
+  const shutdown = (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    log.info('stopping', { signal });
+    running
+      .stop()
+      .then(() => process.exit(0))
+      .catch(() => process.exit(1));
+    setTimeout(() => process.exit(1), 15_000).unref();
+  };
+  process.on('SIGINT', () => shutdown('SIGINT'));
+  process.on('SIGTERM', () => shutdown('SIGTERM'));
+}
+
