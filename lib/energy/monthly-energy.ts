@@ -1,0 +1,45 @@
+/**
+ * Energy yield per calendar month (contract, section 4 `energy`): months in
+ * UTC or an IANA zone, each from local midnight on the 1st, so a month's
+ * hours are its real elapsed hours across a daylight-saving change.
+ */
+import { monthBuckets } from './calendar-buckets';
+import { energyFigures, type EnergyFigures } from './energy-figures';
+import type { EnergySamples } from './energy-samples';
+import { energyTotalsByBucket, type EnergyTotals } from './energy-totals';
+import type { IntegrateOptions } from './integrate';
+import { UTC_ZONE } from './zoned-time';
+
+/** One month: its label, totals and figures. */
+export interface MonthEnergy extends EnergyFigures {
+  /** "2026-03": year and month in the zone asked for. */
+  readonly month: string;
+  /** First instant of the month, epoch ms. */
+  readonly startMs: number;
+  readonly totals: EnergyTotals;
+}
+
+export interface MonthlyEnergyOptions extends IntegrateOptions {
+  /** Rating of the unit, kW. */
+  readonly ratedKw: number;
+  /** IANA zone of the months; default UTC. */
+  readonly timeZone?: string;
+}
+
+/**
+ * Figures of every month from the first sample's to the last sample's, in time order; a month between them without samples is listed with coverage 0.
+ * @example
+ * const { samples } = energySamplesFrom(hydro, log);
+ * monthlyEnergy(samples, { ratedKw: 50, timeZone: 'Europe/Oslo' })[0].month // '2026-03'
+ */
+export function monthlyEnergy(samples: EnergySamples, options: MonthlyEnergyOptions): MonthEnergy[] {
+  if (samples.length === 0) return [];
+  const first = samples.tsMs[0] as number;
+  const last = samples.tsMs[samples.length - 1] as number;
+  const { edgesMs, labels } = monthBuckets(first, last, options.timeZone ?? UTC_ZONE);
+  const totals = energyTotalsByBucket(samples, edgesMs, options);
+  return labels.map((month, k) => {
+    const monthTotals = totals[k] as EnergyTotals;
+    return { month, startMs: edgesMs[k] as number, totals: monthTotals, ...energyFigures(monthTotals, options.ratedKw) };
+  });
+}
