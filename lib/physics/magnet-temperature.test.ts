@@ -1,0 +1,23 @@
+import { describe, expect, it } from 'vitest';
+import { keAtMagnetC, keTemperatureFactor, remanenceCoeffPctPerC } from './magnet-temperature';
+
+describe('magnet temperature', () => {
+  it('uses the material coefficient unless overridden', () => {
+    expect(remanenceCoeffPctPerC('ndfeb')).toBe(-0.12);
+    expect(remanenceCoeffPctPerC('smco')).toBe(-0.035);
+    expect(remanenceCoeffPctPerC('ferrite')).toBe(-0.2);
+    expect(remanenceCoeffPctPerC('ndfeb', -0.1)).toBe(-0.1);
+  });
+
+  it('raises Ke when cold and lowers it when hot', () => {
+    expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: -20, coeffPctPerC: -0.12 })).toBeCloseTo(419.2, 9);
+    expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: 70, coeffPctPerC: -0.2 })).toBeCloseTo(360, 9);
+    expect(keTemperatureFactor(-0.12, 20, 20)).toBe(1);
+  });
+
+  it('names a bad value', () => {
+    expect(() => remanenceCoeffPctPerC('ndfeb', 0.1)).toThrow(/overridePctPerC.*0.1/);
+    expect(() => keAtMagnetC({ keVPerKrpm: 0, refC: 20, magnetC: 20, coeffPctPerC: -0.1 })).toThrow(/keVPerKrpm.*0/);
+    expect(() => keTemperatureFactor(-0.2, 20, 600)).toThrow(/magnetC 600/);
+  });
+});
