@@ -6,6 +6,7 @@ export default defineConfig({
   test: {
     include: ['lib/**/*.test.ts', 'db/**/*.test.ts', 'test/**/*.test.ts'],
     environment: 'node',
+    globalSetup: ['test/support/global-setup.ts'],
     testTimeout: 60_000,
     hookTimeout: 120_000,
     // Integration tests share one PostgreSQL database and fixed broker ports.

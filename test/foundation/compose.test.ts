@@ -1,0 +1,44 @@
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { parse } from 'yaml';
+import { knownVariables } from '../../lib/config/env';
+
+// No Docker engine runs where these tests run, so the compose file is checked
+// by reading it: every variable it passes to a millrace service must be one
+// the configuration module knows, and the services must be wired as documented.
+const compose = parse(readFileSync(new URL('../../docker-compose.yml', import.meta.url), 'utf8'), { merge: true }) as {
+  services: Record<string, { environment?: Record<string, string>; command?: string[]; configs?: Array<{ source: string }> }>;
+  configs: Record<string, { content: string }>;
+};
+
+const MILLRACE_SERVICES = ['web', 'ingest'];
+
+describe('docker-compose.yml', () => {
+  it('runs PostgreSQL, Mosquitto, the web app and the ingester as separate services', () => {
+    expect(Object.keys(compose.services).sort()).toEqual(['ingest', 'mosquitto', 'postgres', 'web']);
+    expect(compose.services.web?.command).toEqual(['npm', 'run', 'web']);
+    expect(compose.services.ingest?.command).toEqual(['npm', 'run', 'ingest']);
+  });
+
+  it.each(MILLRACE_SERVICES)('passes %s only variables the config module knows', (name) => {
+    const env = compose.services[name]?.environment ?? {};
+    expect(Object.keys(env).length).toBeGreaterThan(0);
+    const unknown = Object.keys(env).filter((v) => !knownVariables.includes(v));
+    expect(unknown).toEqual([]);
+  });
+
+  it('wires the services to the database and the broker by name', () => {
+    for (const name of MILLRACE_SERVICES) {
+      const env = compose.services[name]!.environment!;
+      expect(new URL(env.DATABASE_URL!).host).toBe('postgres:5432');
+      expect(env.MQTT_URL).toBe('mqtt://mosquitto:1883');
+    }
+  });
+
+  it('gives Mosquitto the inline configuration, with persistence and no queue limit', () => {
+    expect(compose.services.mosquitto?.configs?.[0]?.source).toBe('mosquitto_conf');
+    const conf = compose.configs.mosquitto_conf!.content;
+    expect(conf).toMatch(/^persistence true$/m);
+    expect(conf).toMatch(/^max_queued_messages 0$/m);
+  });
+});
