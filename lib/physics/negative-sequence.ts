@@ -22,6 +22,7 @@ export function negativeSequenceUnbalancePct(uab: number, ubc: number, uca: numb
   const root2 = 3 - 6 * beta;
   // β is 1/3 for a balanced set and 1/2 for a degenerate (flat) triangle.
   if (root2 < -1e-12) return undefined;
-  const root = Math.sqrt(Math.max(0, root2));
+  // Rounding can put a balanced set a hair past β = 1/3; clamp to the balanced value.
+  const root = Math.sqrt(Math.min(1, Math.max(0, root2)));
   return 100 * Math.sqrt((1 - root) / (1 + root));
 }
