@@ -2,7 +2,7 @@
  * Unit health: the latest diagnosis of each unit and the history the trend is
  * drawn from. Written by lib/diagnosis, read by the dashboard and alerts.
  */
-import { bigint, doublePrecision, index, integer, jsonb, pgEnum, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+import { bigint, doublePrecision, index, integer, jsonb, pgEnum, pgTable, timestamp } from 'drizzle-orm/pg-core';
 import { units } from './fleet';
 
 export const VERDICTS = ['healthy', 'demagnetised', 'shorted-turns', 'speed-sensor-fault', 'insufficient-data'] as const;

@@ -73,8 +73,8 @@ export async function main(args: readonly string[], io: CliIo = { stdout: proces
     return 0;
   }
   try {
-    const module = await command.load();
-    return await module.run(rest, io);
+    const loaded = await command.load();
+    return await loaded.run(rest, io);
   } catch (error) {
     if (error instanceof AppError && error.expose) {
       io.stderr.write(`millrace ${name}: ${error.message}\n`);
