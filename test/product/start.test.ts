@@ -1,0 +1,93 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromium, type Browser } from 'playwright-core';
+import { mkdtempSync, mkdirSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { eventually, startProductProcess, type RunningProduct } from '../support/product';
+import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
+
+// `npm start` as a user runs it: the build when needed, then the whole product
+// in one process. With the demo fleet on, telemetry flows from the simulated
+// devices through the broker and the ingester into the database, and the
+// fleet page shows it.
+let product: RunningProduct;
+let browser: Browser;
+
+beforeAll(async () => {
+  product = await startProductProcess({ DEMO: 'on' });
+  browser = await chromium.launch({
+    executablePath: '/usr/bin/chromium',
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+      '--no-first-run',
+      `--user-data-dir=${mkdtempSync(join(tmpdir(), 'millrace-chromium-'))}`,
+    ],
+  });
+}, 300_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await product?.stop();
+}, 60_000);
+
+interface Health {
+  status: string;
+  components: Record<string, { status: string; [k: string]: unknown }>;
+}
+
+describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${realBrokerUrl ? 'real broker' : 'embedded broker'})`, () => {
+  it('reports database, broker and ingester state at /api/health', async () => {
+    const health = await eventually(
+      async () => {
+        const res = await fetch(`${product.url}/api/health`);
+        const body = (await res.json()) as Health;
+        return body.components.ingester?.connected === true ? body : undefined;
+      },
+      30_000,
+      'the ingester to connect',
+    );
+    expect(health.components.database?.status).toBe('ok');
+    expect(health.components.database?.backend).toBe(realDatabaseUrl ? 'postgres' : 'pglite');
+    expect(health.components.broker?.embedded).toBe(!realBrokerUrl);
+    expect(health.components.ingester?.status).toBe('ok');
+  });
+
+  it('stores the demo fleet telemetry that went through the broker', async () => {
+    const committed = await eventually(
+      async () => {
+        const body = (await (await fetch(`${product.url}/api/health`)).json()) as Health;
+        const rows = Number(body.components.ingester?.rowsCommitted ?? 0);
+        return rows > 50 ? rows : undefined;
+      },
+      90_000,
+      'demo samples to be committed',
+    );
+    expect(committed).toBeGreaterThan(50);
+  });
+
+  it('shows the fleet list in a browser', async () => {
+    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+    await eventually(
+      async () => {
+        await page.goto(product.url, { waitUntil: 'load' });
+        return (await page.locator('tr[data-unit] .link-online').count()) > 0 ? true : undefined;
+      },
+      60_000,
+      'a unit to show as online',
+    );
+    const sites = await page.locator('section.site').count();
+    const units = await page.locator('tr[data-unit]').count();
+    expect(sites).toBeGreaterThanOrEqual(3);
+    expect(units).toBeGreaterThanOrEqual(10);
+    await expect(page.locator('footer.caution').textContent()).resolves.toContain('makes voltage whenever its shaft turns');
+    mkdirSync('test-results', { recursive: true });
+    await page.screenshot({ path: `test-results/fleet-${realDatabaseUrl ? 'postgres' : 'pglite'}.png`, fullPage: true });
+    await page.close();
+  });
+});

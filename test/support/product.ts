@@ -1,0 +1,98 @@
+/**
+ * Starts the product the way a user does (`node bin/start.mjs`, which is
+ * `npm start`), on free ports and a throw-away data folder, and stops it.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { freePort } from '../../lib/server/ports';
+import { createPostgresDatabase, realBrokerUrl, realDatabaseUrl } from './backend';
+
+export interface RunningProduct {
+  url: string;
+  port: number;
+  env: Record<string, string>;
+  output(): string;
+  stop(): Promise<void>;
+}
+
+/** Starts millrace; resolves when it prints its URL (the first start also builds the app). */
+export async function startProductProcess(extraEnv: Record<string, string> = {}, timeoutMs = 240_000): Promise<RunningProduct> {
+  const dir = mkdtempSync(join(tmpdir(), 'millrace-product-'));
+  const port = await freePort();
+  const env: Record<string, string> = {
+    PORT: String(port),
+    MQTT_PORT: String(await freePort()),
+    DATA_DIR: join(dir, 'data'),
+    LOG_LEVEL: 'warn',
+    NEXT_TELEMETRY_DISABLED: '1',
+    INGEST_CLIENT_ID: `millrace-test-${port}`,
+    ...extraEnv,
+  };
+  let dropDb: (() => Promise<void>) | undefined;
+  if (realDatabaseUrl && extraEnv.DATABASE_URL === undefined) {
+    const created = await createPostgresDatabase(realDatabaseUrl, 'millrace_product');
+    env.DATABASE_URL = created.url;
+    dropDb = created.drop;
+  }
+  if (realBrokerUrl && extraEnv.MQTT_URL === undefined) env.MQTT_URL = realBrokerUrl;
+  const childEnv: NodeJS.ProcessEnv = { ...process.env, ...env };
+  if (!env.DATABASE_URL) delete childEnv.DATABASE_URL;
+  if (!env.MQTT_URL) delete childEnv.MQTT_URL;
+  const child: ChildProcess = spawn(process.execPath, ['bin/start.mjs'], { cwd: process.cwd(), env: childEnv, stdio: ['ignore', 'pipe', 'pipe'] });
+  let output = '';
+  child.stdout!.on('data', (d) => (output += String(d)));
+  child.stderr!.on('data', (d) => (output += String(d)));
+  const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
+
+  const url = await new Promise<string>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`millrace did not start in ${timeoutMs} ms:\n${output}`)), timeoutMs);
+    const poll = setInterval(() => {
+      const m = /millrace is running at (http:\/\/\S+)/.exec(output);
+      if (m) {
+        clearInterval(poll);
+        clearTimeout(timer);
+        resolve(m[1]!);
+      }
+    }, 100);
+    void exited.then((code) => {
+      clearInterval(poll);
+      clearTimeout(timer);
+      reject(new Error(`millrace exited with ${code} before it served:\n${output}`));
+    });
+  });
+
+  return {
+    url,
+    port,
+    env,
+    output: () => output,
+    stop: async () => {
+      if (child.exitCode === null) {
+        child.kill('SIGTERM');
+        const timer = setTimeout(() => child.kill('SIGKILL'), 15_000);
+        await exited;
+        clearTimeout(timer);
+      }
+      rmSync(dir, { recursive: true, force: true });
+      await dropDb?.();
+    },
+  };
+}
+
+/** Polls `check` until it returns a value, or fails after `timeoutMs`. */
+export async function eventually<T>(check: () => Promise<T | undefined>, timeoutMs: number, what: string): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  let last: unknown;
+  while (Date.now() < deadline) {
+    try {
+      const value = await check();
+      if (value !== undefined) return value;
+    } catch (error) {
+      last = error;
+    }
+    await new Promise((r) => setTimeout(r, 500));
+  }
+  throw new Error(`timed out waiting for ${what}${last ? `: ${String(last)}` : ''}`);
+}
