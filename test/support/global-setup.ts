@@ -1,5 +1,4 @@
 import { backendDescription } from './backend';
-// @ts-expect-error plain ESM helper shared with `npm start`
 import { ensureBuild } from '../../bin/ensure-build.mjs';
 
 /**
@@ -8,5 +7,5 @@ import { ensureBuild } from '../../bin/ensure-build.mjs';
  */
 export default function setup() {
   process.stdout.write(`\nmillrace tests: backend ${backendDescription()}\n\n`);
-  (ensureBuild as (o: { log: (l: string) => void }) => boolean)({ log: (line) => process.stdout.write(line) });
+  ensureBuild({ log: (line: string) => process.stdout.write(line) });
 }
