@@ -41,6 +41,7 @@ export const diagnosisLimitsSchema = z
     unbalanceAlarmPct: z.number().gt(0).lt(100).optional(),
     keAlarmRatio: z.number().gt(0).lt(2).optional(),
     keWarnRatio: z.number().gt(0).lt(2).optional(),
+    maxSpeedRateFractionPerS: z.number().gt(0).max(10).optional(),
     windowHours: z.number().gt(0).max(24 * 31).optional(),
   })
   .strict();

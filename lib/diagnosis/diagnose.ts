@@ -1,0 +1,622 @@
+/**
+ * Diagnosis of one unit from its samples (contract, section 5): the
+ * load- and temperature-corrected EMF constant against the nameplate, the
+ * line-voltage unbalance and the speed-sensor cross-check, and a verdict with
+ * findings. The command line runs it over a whole log, the live diagnosis
+ * over a window of each unit's recent samples.
+ */
+import type { DiagnosisLimits, MagnetMaterial } from '../contract/nameplate';
+import { SQRT3, recoverPhaseEmfFast } from '../physics/emf';
+import { remanenceCoeffPctPerC } from '../physics/magnet-temperature';
+import { median } from '../physics/median';
+import { negativeSequenceUnbalancePct } from '../physics/negative-sequence';
+import { phaseVoltsFromLines } from '../physics/phase-voltages';
+import { rpmFromHz } from '../physics/synchronous-speed';
+import { fitThroughOrigin } from '../physics/through-origin-fit';
+import { lineVoltageUnbalancePct } from '../physics/unbalance';
+import { COPPER_REF_C, COPPER_TEMP_COEFF_PER_C } from '../physics/winding-resistance';
+import { SampleColumns, type DiagnosisSample } from './sample-columns';
+import { resolveLimits, TRANSIENT_NEIGHBOUR_MAX_S, type ResolvedLimits } from './limits';
+import { finding, num, pctFromOne, sortFindings, type Finding } from './findings';
+
+export const VERDICTS = ['healthy', 'demagnetised', 'shorted-turns', 'speed-sensor-fault', 'insufficient-data'] as const;
+export type Verdict = (typeof VERDICTS)[number];
+
+/** The nameplate fields the diagnosis reads (a validated Nameplate fits). */
+export interface DiagnosisNameplate {
+  readonly ratedRpm: number;
+  readonly poles: number;
+  readonly keVPerKrpm: number;
+  readonly keRefC: number;
+  readonly magnet: MagnetMaterial;
+  readonly magnetTempCoeffPctPerC?: number | undefined;
+  readonly phaseOhm: number;
+  readonly phaseMh: number;
+  readonly diagnosis?: DiagnosisLimits | undefined;
+}
+
+/** Where the magnet temperature of the used samples came from. */
+export type TemperatureSource = 'statorC' | 'ambientC' | 'keRefC' | 'mixed';
+
+/** Figures behind the verdict, beyond the contract's fields. */
+export interface DiagnosisDetails {
+  /** Samples given. */
+  readonly samplesTotal: number;
+  /** Samples below the speed floor (minSpeedFraction of ratedRpm). */
+  readonly samplesBelowSpeed: number;
+  /** Samples at speed but in a speed transient. */
+  readonly samplesInTransient: number;
+  /** Samples at speed reading 0 V on every line given. */
+  readonly samplesWithoutVoltage: number;
+  /** Samples without `hz` when speed comes from frequency. */
+  readonly samplesWithoutHz: number;
+  /** Which reading gave the speed of the Ke fit. */
+  readonly speedSource: 'rpm' | 'hz';
+  /** Speed range of the used samples, rev/min. */
+  readonly speedMinRpm: number | null;
+  readonly speedMaxRpm: number | null;
+  /** Nameplate Ke at keRefC, V per 1000 rpm (line-to-line). */
+  readonly keNameplateVPerKrpm: number;
+  /** Measured Ke referred to keRefC, V per 1000 rpm: keRatio × nameplate. */
+  readonly keMeasuredVPerKrpm: number | null;
+  /** Terminal volts per sensor rpm over nameplate Ke, with no load, temperature or speed correction (for comparison). */
+  readonly naiveKeRatio: number | null;
+  /** Share of used samples carrying current, %. */
+  readonly loadedSharePct: number | null;
+  /** Mean EMF above terminal voltage over the loaded samples, %: the size of the load correction. */
+  readonly loadCorrectionPct: number | null;
+  /** Mean magnet temperature of the used samples, °C, and where it came from. */
+  readonly magnetMeanC: number | null;
+  readonly magnetTempSource: TemperatureSource | null;
+  /** Reversible remanence coefficient applied, % per °C. */
+  readonly magnetCoeffPctPerC: number;
+  /** IEC 61000-4-30 negative-sequence unbalance, median over used samples, %. */
+  readonly negativeSequencePct: number | null;
+  /** Ke ratio of each phase (phase voltages referred to the line-voltage triangle's centroid); null without all three lines. */
+  readonly phaseKeRatio: { readonly a: number; readonly b: number; readonly c: number } | null;
+  /** Time range of the used samples, ISO-8601 UTC. */
+  readonly fromTs: string | null;
+  readonly toTs: string | null;
+  /** Thresholds applied. */
+  readonly limits: ResolvedLimits;
+}
+
+/** The check result (contract, section 4) plus `details`. */
+export interface DiagnosisResult {
+  readonly samplesUsed: number;
+  readonly keRatio: number | null;
+  readonly keRatioLow: number | null;
+  readonly keRatioHigh: number | null;
+  readonly unbalancePct: number | null;
+  readonly speedRatio: number | null;
+  readonly verdict: Verdict;
+  readonly findings: Finding[];
+  readonly details: DiagnosisDetails;
+}
+
+/** Input of {@link diagnoseSamples}. */
+export interface DiagnoseInput {
+  readonly nameplate: DiagnosisNameplate;
+  /** Samples of the unit in any order; a SampleColumns store avoids one object per sample. */
+  readonly samples: readonly DiagnosisSample[] | SampleColumns;
+  /** Thresholds over the nameplate's own. */
+  readonly limits?: DiagnosisLimits;
+  /** Findings of the caller (rows skipped, unknown columns), sorted in with the diagnosis's own. */
+  readonly extraFindings?: readonly Finding[];
+}
+
+/** Samples of one speed source that pass the filters, as positions in time order. */
+interface Track {
+  readonly source: 'rpm' | 'hz';
+  readonly speed: Float64Array;
+  readonly used: Uint32Array;
+  readonly count: number;
+  readonly belowSpeed: number;
+  readonly inTransient: number;
+  readonly withoutVoltage: number;
+  readonly missing: number;
+  readonly minRpm: number;
+  readonly maxRpm: number;
+}
+
+/** Positions of the samples in time order; undefined when they already are. */
+function timeOrder(ts: Float64Array, n: number): Uint32Array | undefined {
+  let sorted = true;
+  for (let i = 1; i < n; i++) {
+    if ((ts[i] as number) < (ts[i - 1] as number)) {
+      sorted = false;
+      break;
+    }
+  }
+  if (sorted) return undefined;
+  const order = new Uint32Array(n);
+  for (let i = 0; i < n; i++) order[i] = i;
+  order.sort((a, b) => (ts[a] as number) - (ts[b] as number) || a - b);
+  return order;
+}
+
+/** Mean of the finite values among three; NaN when none (internal only). */
+function mean3(a: number, b: number, c: number): number {
+  let sum = 0;
+  let n = 0;
+  if (a === a) {
+    sum += a;
+    n++;
+  }
+  if (b === b) {
+    sum += b;
+    n++;
+  }
+  if (c === c) {
+    sum += c;
+    n++;
+  }
+  return n === 0 ? Number.NaN : sum / n;
+}
+
+function selectTrack(
+  source: 'rpm' | 'hz',
+  cols: SampleColumns,
+  order: Uint32Array | undefined,
+  nameplate: DiagnosisNameplate,
+  limits: ResolvedLimits,
+): Track {
+  const n = cols.length;
+  const { rpm, hz, vab, vbc, vca } = cols.columns;
+  const speed = new Float64Array(n);
+  const hzToRpm = rpmFromHz(nameplate.poles, 1);
+  for (let k = 0; k < n; k++) {
+    const i = order === undefined ? k : (order[k] as number);
+    speed[k] = source === 'rpm' ? (rpm[i] as number) : (hz[i] as number) * hzToRpm;
+  }
+  const floor = limits.minSpeedFraction * nameplate.ratedRpm;
+  const maxRate = limits.maxSpeedRateFractionPerS * nameplate.ratedRpm;
+  const used = new Uint32Array(n);
+  let count = 0;
+  let belowSpeed = 0;
+  let inTransient = 0;
+  let withoutVoltage = 0;
+  let missing = 0;
+  let minRpm = Infinity;
+  let maxRpm = -Infinity;
+  let prev = -1;
+  for (let k = 0; k < n; k++) {
+    const s = speed[k] as number;
+    if (s !== s) {
+      missing++;
+      continue;
+    }
+    // Nearest neighbours in time that carry this speed reading.
+    let next = k + 1;
+    while (next < n && (speed[next] as number) !== (speed[next] as number)) next++;
+    const here = k;
+    const thisPrev = prev;
+    prev = k;
+    if (s < floor) {
+      belowSpeed++;
+      continue;
+    }
+    const i = order === undefined ? here : (order[here] as number);
+    if (!(mean3(vab[i] as number, vbc[i] as number, vca[i] as number) > 0)) {
+      withoutVoltage++;
+      continue;
+    }
+    const tsHere = cols.ts[i] as number;
+    let transient = false;
+    for (const other of [thisPrev, next]) {
+      if (other < 0 || other >= n) continue;
+      const j = order === undefined ? other : (order[other] as number);
+      const dtS = Math.abs((cols.ts[j] as number) - tsHere) / 1000;
+      if (dtS === 0 || dtS > TRANSIENT_NEIGHBOUR_MAX_S) continue;
+      if (Math.abs((speed[other] as number) - s) / dtS > maxRate) transient = true;
+    }
+    if (transient) {
+      inTransient++;
+      continue;
+    }
+    used[count++] = here;
+    if (s < minRpm) minRpm = s;
+    if (s > maxRpm) maxRpm = s;
+  }
+  return { source, speed, used, count, belowSpeed, inTransient, withoutVoltage, missing, minRpm, maxRpm };
+}
+
+/** Median of hz / (poles·rpm/120) over the track's samples that carry both. */
+function medianSpeedRatio(track: Track, cols: SampleColumns, order: Uint32Array | undefined, poles: number, invert: boolean): number | undefined {
+  const ratios = new Float64Array(track.count);
+  let m = 0;
+  const { rpm, hz } = cols.columns;
+  for (let u = 0; u < track.count; u++) {
+    const k = track.used[u] as number;
+    const i = order === undefined ? k : (order[k] as number);
+    const f = hz[i] as number;
+    const r = rpm[i] as number;
+    if (f !== f || r !== r) continue;
+    const fromRpm = (poles * r) / 120;
+    if (invert) {
+      if (f > 0) ratios[m++] = fromRpm / f;
+    } else if (fromRpm > 0) ratios[m++] = f / fromRpm;
+  }
+  return median(ratios, m);
+}
+
+/**
+ * Diagnoses a unit from its samples; never throws on data, only on a programmer error.
+ * @example diagnoseSamples({ nameplate, samples }).verdict // 'healthy'
+ */
+export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
+  const { nameplate } = input;
+  if (!(nameplate.ratedRpm > 0)) throw new RangeError(`nameplate.ratedRpm must be above 0, got ${nameplate.ratedRpm}`);
+  if (!(nameplate.keVPerKrpm > 0)) throw new RangeError(`nameplate.keVPerKrpm must be above 0, got ${nameplate.keVPerKrpm}`);
+  const limits = resolveLimits(nameplate.diagnosis, input.limits);
+  const cols = input.samples instanceof SampleColumns ? input.samples : SampleColumns.from(input.samples);
+  const n = cols.length;
+  const order = timeOrder(cols.ts, n);
+  const findings: Finding[] = [...(input.extraFindings ?? [])];
+  const tolerance = limits.speedRatioTolerance;
+
+  // Speed: the sensor unless the frequency says it is wrong (contract, section 5).
+  const rpmTrack = selectTrack('rpm', cols, order, nameplate, limits);
+  let speedRatio = medianSpeedRatio(rpmTrack, cols, order, nameplate.poles, false);
+  let track = rpmTrack;
+  let sensorFault = speedRatio !== undefined && Math.abs(speedRatio - 1) > tolerance;
+  let hzTrack: Track | undefined;
+  if (sensorFault || rpmTrack.count < limits.minSamples) {
+    hzTrack = selectTrack('hz', cols, order, nameplate, limits);
+    if (!sensorFault && hzTrack.count >= limits.minSamples) {
+      // The sensor reads too low for the floor while the frequency says the machine turns.
+      const inverse = medianSpeedRatio(hzTrack, cols, order, nameplate.poles, true);
+      if (inverse !== undefined && Math.abs(inverse - 1) > tolerance) {
+        sensorFault = true;
+        speedRatio = inverse > 0 ? 1 / inverse : undefined;
+      }
+    }
+    if (sensorFault) track = hzTrack;
+  }
+
+  const fit = fitTrack(track, cols, order, nameplate);
+  const span = track.count > 0 ? track.maxRpm - track.minRpm : 0;
+  const insufficient = track.count < limits.minSamples || span < limits.minSpeedSpanFraction * nameplate.ratedRpm;
+  const keRatio = fit.ke?.slope;
+  const unbalancePct = fit.unbalancePct;
+
+  let verdict: Verdict;
+  if (insufficient) verdict = 'insufficient-data';
+  else if (sensorFault) verdict = 'speed-sensor-fault';
+  else if (unbalancePct !== undefined && unbalancePct > limits.unbalanceAlarmPct) verdict = 'shorted-turns';
+  else if (keRatio !== undefined && keRatio < limits.keAlarmRatio) verdict = 'demagnetised';
+  else verdict = 'healthy';
+
+  const floorRpm = limits.minSpeedFraction * nameplate.ratedRpm;
+  if (insufficient) {
+    findings.push(
+      finding(
+        'insufficient-data',
+        'warning',
+        `Only ${num(track.count)} samples usable over a speed range of ${num(span, 0)} rpm; the diagnosis needs at least ` +
+          `${num(limits.minSamples)} samples above ${num(floorRpm)} rpm (${num(limits.minSpeedFraction * 100)} % of rated) ` +
+          `spread over at least ${num(limits.minSpeedSpanFraction * nameplate.ratedRpm)} rpm (${num(limits.minSpeedSpanFraction * 100)} % of rated). ` +
+          'Collect a longer log that covers more of the operating speed range.',
+      ),
+    );
+  }
+  if (track.belowSpeed + track.inTransient + track.withoutVoltage + track.missing > 0) {
+    const parts = [
+      track.belowSpeed > 0 ? `${num(track.belowSpeed)} below ${num(floorRpm)} rpm` : '',
+      track.inTransient > 0
+        ? `${num(track.inTransient)} in speed transients (faster than ${num(limits.maxSpeedRateFractionPerS * nameplate.ratedRpm, 1)} rpm/s)`
+        : '',
+      track.missing > 0 ? `${num(track.missing)} without ${track.source === 'hz' ? 'hz' : 'rpm'}` : '',
+    ].filter(Boolean);
+    if (parts.length > 0) {
+      findings.push(finding('samples-filtered', 'info', `${num(track.count)} of ${num(n)} samples used; not used: ${parts.join(', ')}.`));
+    }
+  }
+  if (track.withoutVoltage > 0) {
+    findings.push(
+      finding(
+        'no-voltage-at-speed',
+        'warning',
+        `${num(track.withoutVoltage)} samples read 0 V on every line while turning above ${num(floorRpm)} rpm; they were not used. ` +
+          'A turning PM generator always makes voltage: check the voltage measurement and its wiring.',
+        true,
+      ),
+    );
+  }
+
+  if (speedRatio === undefined) {
+    findings.push(finding('no-frequency', 'info', 'No hz readings at speed: the speed sensor could not be cross-checked against the terminal frequency.'));
+  } else if (sensorFault) {
+    const hzRpm = speedRatio * nameplate.ratedRpm;
+    findings.push(
+      finding(
+        'speed-sensor-fault',
+        verdict === 'insufficient-data' ? 'warning' : 'alarm',
+        `The terminal frequency and the speed sensor disagree: hz / (poles·rpm/120) is ${num(speedRatio, 3)} (median), ` +
+          `beyond the ±${num(tolerance * 100, 1)} % tolerance; when the sensor reads ${num(nameplate.ratedRpm)} rpm the frequency says ${num(hzRpm)} rpm. ` +
+          'A permanent-magnet generator has no slip, so the frequency is the true speed. Check the speed sensor, its pulses-per-revolution ' +
+          `setting, its target and wiring, and the nameplate pole count (${nameplate.poles}).`,
+        true,
+      ),
+    );
+  }
+
+  if (fit.ke !== undefined && !insufficient) {
+    const ke = fit.ke;
+    const band = `${num(ke.slope, 3)} (95 % interval ${num(ke.low, 4)} to ${num(ke.high, 4)})`;
+    const measured = `${num(ke.slope * nameplate.keVPerKrpm, 1)} V per 1000 rpm against ${num(nameplate.keVPerKrpm, 1)} on the nameplate at ${num(nameplate.keRefC)} °C`;
+    if (sensorFault) {
+      findings.push(
+        finding(
+          'magnets-with-frequency-speed',
+          ke.slope < limits.keAlarmRatio ? 'alarm' : ke.slope < limits.keWarnRatio ? 'warning' : 'info',
+          `With speed taken from the terminal frequency, Ke is ${band} of nameplate (${measured}): magnets ` +
+            (ke.slope < limits.keAlarmRatio
+              ? `weakened beyond the ${num(limits.keAlarmRatio, 2)} alarm threshold.`
+              : ke.slope < limits.keWarnRatio
+                ? `below the ${num(limits.keWarnRatio, 2)} warning threshold.`
+                : 'look healthy.'),
+        ),
+      );
+    }
+    if (ke.slope < limits.keAlarmRatio) {
+      if (!sensorFault) {
+        findings.push(
+          finding(
+            'demagnetised',
+            'alarm',
+            `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}), below the ${num(limits.keAlarmRatio, 2)} alarm threshold, ` +
+              `${pctFromOne(ke.slope)} on all phases alike. Check the magnet temperature reading first (a sensor reading cold makes hot magnets look weak), ` +
+              'then the history of overheating, overload or short circuits; confirm with an open-circuit voltage test at known speed.',
+            true,
+          ),
+        );
+      }
+    } else if (ke.slope < limits.keWarnRatio) {
+      findings.push(
+        finding(
+          'ke-low',
+          'warning',
+          `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}), below the ${num(limits.keWarnRatio, 2)} warning threshold ` +
+            `(alarm at ${num(limits.keAlarmRatio, 2)}). Watch the trend; check the magnet temperature reading and recent overheating.`,
+        ),
+      );
+    } else if (ke.slope > 2 - limits.keAlarmRatio) {
+      findings.push(
+        finding(
+          'ke-above-nameplate',
+          'warning',
+          `Ke is ${band} of nameplate (${measured}), more than ${num((1 - limits.keAlarmRatio) * 100)} % above it. Magnets do not get stronger: ` +
+            'check the nameplate Ke and its reference temperature, and the voltage transducer ratio.',
+        ),
+      );
+    } else if (!sensorFault) {
+      findings.push(finding('ke-normal', 'info', `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}).`));
+    }
+  }
+
+  if (unbalancePct === undefined) {
+    findings.push(finding('no-unbalance', 'info', 'Not all three line voltages (vab, vbc, vca) were logged at speed: unbalance and shorted turns could not be judged.'));
+  } else if (!insufficient) {
+    const weakest = fit.phaseKe === undefined ? undefined : weakestPhase(fit.phaseKe);
+    const phaseNote =
+      fit.phaseKe === undefined
+        ? ''
+        : ` Phase Ke ratios a ${num(fit.phaseKe.a, 3)}, b ${num(fit.phaseKe.b, 3)}, c ${num(fit.phaseKe.c, 3)}` +
+          (weakest === undefined ? '.' : `; phase ${weakest} is the weakest.`);
+    if (unbalancePct > limits.unbalanceAlarmPct) {
+      findings.push(
+        finding(
+          'shorted-turns',
+          verdict === 'shorted-turns' ? 'alarm' : 'warning',
+          `Line-voltage unbalance is ${num(unbalancePct, 2)} % (median, NEMA MG 1 definition), above the ${num(limits.unbalanceAlarmPct, 1)} % threshold; ` +
+            `negative-sequence unbalance ${fit.negativeSequencePct === undefined ? 'unknown' : `${num(fit.negativeSequencePct, 2)} %`}.${phaseNote} ` +
+            'A shorted turn lowers one phase EMF. Rule out an unbalanced load and loose or corroded terminals first, ' +
+            'then measure phase resistances and insulation with the machine stopped.',
+          true,
+        ),
+      );
+    } else {
+      findings.push(
+        finding(
+          'unbalance-normal',
+          'info',
+          `Line-voltage unbalance is ${num(unbalancePct, 2)} % (median), within the ${num(limits.unbalanceAlarmPct, 1)} % threshold.${phaseNote}`,
+        ),
+      );
+    }
+  }
+
+  if (!insufficient && fit.magnetTempSource === 'keRefC') {
+    findings.push(
+      finding(
+        'no-temperature',
+        'info',
+        `No statorC or ambientC readings: Ke was not corrected for magnet temperature (taken as the nameplate's ${num(nameplate.keRefC)} °C). ` +
+          `${nameplate.magnet} magnets change Ke by ${num(Math.abs(fit.coeffPctPerC), 3)} % per °C.`,
+      ),
+    );
+  }
+  if (!insufficient && fit.loadCorrectionPct !== undefined && fit.naive !== undefined && fit.ke !== undefined) {
+    findings.push(
+      finding(
+        'corrections',
+        'info',
+        `${num(fit.loadedSharePct ?? 0)} % of used samples were under load; the EMF behind the terminals was on average ${num(fit.loadCorrectionPct, 1)} % above the terminal voltage. ` +
+          `Uncorrected terminal volts per rpm give ${num(fit.naive, 3)} of nameplate, corrected ${num(fit.ke.slope, 3)}.`,
+      ),
+    );
+  }
+
+  const usedTimes = timeRange(track, cols, order);
+  return {
+    samplesUsed: track.count,
+    keRatio: keRatio ?? null,
+    keRatioLow: fit.ke?.low ?? null,
+    keRatioHigh: fit.ke?.high ?? null,
+    unbalancePct: unbalancePct ?? null,
+    speedRatio: speedRatio ?? null,
+    verdict,
+    findings: sortFindings(findings),
+    details: {
+      samplesTotal: n,
+      samplesBelowSpeed: track.belowSpeed,
+      samplesInTransient: track.inTransient,
+      samplesWithoutVoltage: track.withoutVoltage,
+      samplesWithoutHz: track.source === 'hz' ? track.missing : 0,
+      speedSource: track.source,
+      speedMinRpm: track.count > 0 ? track.minRpm : null,
+      speedMaxRpm: track.count > 0 ? track.maxRpm : null,
+      keNameplateVPerKrpm: nameplate.keVPerKrpm,
+      keMeasuredVPerKrpm: keRatio === undefined ? null : keRatio * nameplate.keVPerKrpm,
+      naiveKeRatio: fit.naive ?? null,
+      loadedSharePct: fit.loadedSharePct ?? null,
+      loadCorrectionPct: fit.loadCorrectionPct ?? null,
+      magnetMeanC: fit.magnetMeanC ?? null,
+      magnetTempSource: fit.magnetTempSource ?? null,
+      magnetCoeffPctPerC: fit.coeffPctPerC,
+      negativeSequencePct: fit.negativeSequencePct ?? null,
+      phaseKeRatio: fit.phaseKe ?? null,
+      fromTs: usedTimes?.[0] ?? null,
+      toTs: usedTimes?.[1] ?? null,
+      limits,
+    },
+  };
+}
+
+function weakestPhase(ke: { readonly a: number; readonly b: number; readonly c: number }): 'a' | 'b' | 'c' | undefined {
+  const entries = [['a', ke.a], ['b', ke.b], ['c', ke.c]] as const;
+  const sorted = [...entries].sort((x, y) => x[1] - y[1]);
+  const [low, mid] = sorted as unknown as [readonly ['a' | 'b' | 'c', number], readonly ['a' | 'b' | 'c', number]];
+  // Only name a phase that stands out from the other two.
+  return mid[1] - low[1] > 0.005 ? low[0] : undefined;
+}
+
+function timeRange(track: Track, cols: SampleColumns, order: Uint32Array | undefined): [string, string] | undefined {
+  if (track.count === 0) return undefined;
+  const first = track.used[0] as number;
+  const last = track.used[track.count - 1] as number;
+  const at = (k: number) => new Date(cols.ts[order === undefined ? k : (order[k] as number)] as number).toISOString();
+  return [at(first), at(last)];
+}
+
+interface TrackFit {
+  ke?: { slope: number; low: number; high: number };
+  naive?: number;
+  unbalancePct?: number;
+  negativeSequencePct?: number;
+  phaseKe?: { a: number; b: number; c: number };
+  loadedSharePct?: number;
+  loadCorrectionPct?: number;
+  magnetMeanC?: number;
+  magnetTempSource?: TemperatureSource;
+  coeffPctPerC: number;
+}
+
+/**
+ * The Ke fit and unbalance over a track's used samples. For each sample the
+ * expected EMF x = Ke(magnet temperature)·speed/1000 and the recovered EMF
+ * y = √3·|V + I·(R + jX)|; keRatio is the slope of y on x through the origin.
+ */
+function fitTrack(track: Track, cols: SampleColumns, order: Uint32Array | undefined, nameplate: DiagnosisNameplate): TrackFit {
+  const coeffPctPerC = remanenceCoeffPctPerC(nameplate.magnet, nameplate.magnetTempCoeffPctPerC);
+  const result: TrackFit = { coeffPctPerC };
+  const m = track.count;
+  if (m === 0) return result;
+  const { rpm, hz, vab, vbc, vca, ia, ib, ic, kw, statorC, ambientC } = cols.columns;
+  const x = new Float64Array(m);
+  const y = new Float64Array(m);
+  const unbalance = new Float64Array(m);
+  const negSeq = new Float64Array(m);
+  let nUnbalance = 0;
+  let nNegSeq = 0;
+  let sxNaive = 0;
+  let sxxNaive = 0;
+  let sxPhaseA = 0;
+  let sxPhaseB = 0;
+  let sxPhaseC = 0;
+  let sxxPhase = 0;
+  let loaded = 0;
+  let correctionSum = 0;
+  let magnetSum = 0;
+  let fromStator = 0;
+  let fromAmbient = 0;
+  const keRef = nameplate.keVPerKrpm / 1000;
+  const coeff = coeffPctPerC / 100;
+  const hzPerRpm = nameplate.poles / 120;
+  const henry = nameplate.phaseMh / 1000;
+  for (let u = 0; u < m; u++) {
+    const k = track.used[u] as number;
+    const i = order === undefined ? k : (order[k] as number);
+    const speed = track.speed[k] as number;
+    const stator = statorC[i] as number;
+    const ambient = ambientC[i] as number;
+    let magnetC = nameplate.keRefC;
+    if (stator === stator) {
+      magnetC = stator;
+      fromStator++;
+    } else if (ambient === ambient) {
+      magnetC = ambient;
+      fromAmbient++;
+    }
+    magnetSum += magnetC;
+    const windingC = stator === stator ? stator : ambient === ambient ? ambient : COPPER_REF_C;
+    // Past the coefficient's linear range the factor would reach 0; 5 % keeps the fit finite.
+    const tempFactor = Math.max(0.05, 1 + coeff * (magnetC - nameplate.keRefC));
+    const xi = keRef * tempFactor * speed;
+    const a = vab[i] as number;
+    const b = vbc[i] as number;
+    const c = vca[i] as number;
+    const vll = mean3(a, b, c);
+    const current = mean3(ia[i] as number, ib[i] as number, ic[i] as number);
+    const amps = current === current ? current : 0;
+    const f = hz[i] === hz[i] ? (hz[i] as number) : hzPerRpm * speed;
+    const ohm = nameplate.phaseOhm * (1 + COPPER_TEMP_COEFF_PER_C * (windingC - COPPER_REF_C));
+    const xOhm = 2 * Math.PI * f * henry;
+    let pf = 1;
+    const p = kw[i] as number;
+    if (amps > 0 && p === p) pf = Math.max(-1, Math.min(1, (p * 1000) / (SQRT3 * vll * amps)));
+    const emfLl = SQRT3 * recoverPhaseEmfFast(vll / SQRT3, amps, ohm, xOhm, pf);
+    x[u] = xi;
+    y[u] = emfLl;
+    // The naive measure: terminal volts over the sensor's rpm, nothing corrected.
+    const sensorRpm = rpm[i] as number;
+    if (sensorRpm === sensorRpm) {
+      const naiveX = keRef * sensorRpm;
+      sxNaive += naiveX * vll;
+      sxxNaive += naiveX * naiveX;
+    }
+    if (amps > 0) {
+      loaded++;
+      correctionSum += emfLl / vll - 1;
+    }
+    if (a === a && b === b && c === c) {
+      const pct = lineVoltageUnbalancePct(a, b, c);
+      if (pct !== undefined) unbalance[nUnbalance++] = pct;
+      const u2 = negativeSequenceUnbalancePct(a, b, c);
+      if (u2 !== undefined) negSeq[nNegSeq++] = u2;
+      const phases = phaseVoltsFromLines(a, b, c);
+      if (phases !== undefined) {
+        const pa = ia[i] as number;
+        const pb = ib[i] as number;
+        const pc = ic[i] as number;
+        sxPhaseA += xi * SQRT3 * recoverPhaseEmfFast(phases[0], pa === pa ? pa : amps, ohm, xOhm, pf);
+        sxPhaseB += xi * SQRT3 * recoverPhaseEmfFast(phases[1], pb === pb ? pb : amps, ohm, xOhm, pf);
+        sxPhaseC += xi * SQRT3 * recoverPhaseEmfFast(phases[2], pc === pc ? pc : amps, ohm, xOhm, pf);
+        sxxPhase += xi * xi;
+      }
+    }
+  }
+  const ke = fitThroughOrigin(x, y, m);
+  if (ke !== undefined) result.ke = { slope: ke.slope, low: ke.low, high: ke.high };
+  if (sxxNaive > 0) result.naive = sxNaive / sxxNaive;
+  // Median over the used samples that carry all three line voltages.
+  if (nUnbalance > 0) result.unbalancePct = median(unbalance, nUnbalance);
+  if (nNegSeq > 0) result.negativeSequencePct = median(negSeq, nNegSeq);
+  if (sxxPhase > 0) result.phaseKe = { a: sxPhaseA / sxxPhase, b: sxPhaseB / sxxPhase, c: sxPhaseC / sxxPhase };
+  result.loadedSharePct = (100 * loaded) / m;
+  if (loaded > 0) result.loadCorrectionPct = (100 * correctionSum) / loaded;
+  result.magnetMeanC = magnetSum / m;
+  result.magnetTempSource = fromStator === m ? 'statorC' : fromAmbient === m ? 'ambientC' : fromStator + fromAmbient === 0 ? 'keRefC' : 'mixed';
+  return result;
+}
