@@ -185,7 +185,7 @@ describe('millrace energy --json', () => {
     expect(r.rowsSkipped.first[1]?.problems.join(' ')).toMatch(/^rpm: /);
     const note = r.notes.find((n) => n.code === 'rows-skipped');
     expect(note?.severity).toBe('warning');
-    expect(note?.message).toMatch(/^3 rows skipped: line 4 \(kw: .*\), line 6 \(rpm: .*\), line 8 \(ts: .*\)$/);
+    expect(note?.message).toMatch(/^3 of 13 rows skipped as invalid, not counted: line 4 \(kw: .*\), line 6 \(rpm: .*\), line 8 \(ts: .*\)$/);
     expect(r.samplesUsed).toBe(10);
     // The good samples are 5 minutes apart except around lines 4, 6 and 8, where they are 10 — still covered.
     expect(r.months[0]?.kwh).toBeCloseTo(6, 3);

@@ -24,6 +24,7 @@ import { UTC_ZONE } from '../energy/zoned-time';
 /** How many bad rows a note lists by line. */
 const LISTED_BAD_ROWS = 5;
 
+/** A note on what the figures rest on, shaped like a finding of `check`. */
 export interface EnergyNote {
   code: string;
   severity: 'info' | 'warning';
@@ -75,6 +76,8 @@ const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? o
 
 interface NoteInputs {
   nameplate: Nameplate;
+  /** Data rows of the log, good and bad. */
+  rows: number;
   columns: readonly string[];
   unknownColumns: readonly string[];
   counts: EnergySampleCounts;
@@ -82,7 +85,7 @@ interface NoteInputs {
   months: readonly MonthEnergy[];
 }
 
-function buildNotes({ nameplate, columns, unknownColumns, counts, badRows, months }: NoteInputs): EnergyNote[] {
+function buildNotes({ nameplate, rows, columns, unknownColumns, counts, badRows, months }: NoteInputs): EnergyNote[] {
   const notes: EnergyNote[] = [];
   const resourceField = nameplate.kind === 'wind' ? 'windMs' : 'flowM3s';
   const gapMinutes = MAX_COVERED_INTERVAL_MS / 60_000;
@@ -90,7 +93,11 @@ function buildNotes({ nameplate, columns, unknownColumns, counts, badRows, month
   if (badRows.count > 0) {
     const listed = badRows.first.map((row) => `line ${row.line} (${row.problems.join('; ')})`).join(', ');
     const more = badRows.count > badRows.first.length ? ` and ${badRows.count - badRows.first.length} more` : '';
-    notes.push({ code: 'rows-skipped', severity: 'warning', message: `${plural(badRows.count, 'row')} skipped: ${listed}${more}` });
+    notes.push({
+      code: 'rows-skipped',
+      severity: 'warning',
+      message: `${badRows.count} of ${plural(rows, 'row')} skipped as invalid, not counted: ${listed}${more}`,
+    });
   }
   if (counts.samples === 0) {
     notes.push({ code: 'no-samples', severity: 'warning', message: 'the log holds no valid sample: there is no month to report' });
@@ -271,6 +278,7 @@ export async function run(args: string[], io: CliIo): Promise<number> {
   const months = monthlyEnergy(samples, { ratedKw: nameplate.ratedKw, timeZone });
   const notes = buildNotes({
     nameplate,
+    rows: summary.rows,
     columns: summary.columns,
     unknownColumns: summary.unknownColumns,
     counts,

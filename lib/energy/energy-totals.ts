@@ -37,7 +37,10 @@ export interface EnergyTotals {
   readonly deliveringHours: number;
 }
 
-/** Totals of a bucket with nothing in it. */
+/**
+ * Totals of a bucket of `periodHours` hours with nothing in it.
+ * @example emptyEnergyTotals(744).coveredHours // 0
+ */
 export function emptyEnergyTotals(periodHours: number): EnergyTotals {
   return {
     periodHours,

@@ -28,6 +28,7 @@ export interface BucketIntegrals {
   readonly coveredHours: Float64Array;
 }
 
+/** Options of {@link integrateIntoBuckets}. */
 export interface IntegrateOptions {
   /** Longest interval that counts, ms; default {@link MAX_COVERED_INTERVAL_MS}. */
   readonly maxIntervalMs?: number;

@@ -2,7 +2,6 @@ import { describe, expect, it } from 'vitest';
 import { energySamplesFrom } from './energy-samples';
 import { monthlyEnergy } from './monthly-energy';
 
-const MIN = 60_000;
 const hydro = { kind: 'hydro' as const, ratedKw: 50, designHeadM: 10, efficiency: 0.8 };
 
 describe('monthlyEnergy', () => {

@@ -19,6 +19,7 @@ export interface MonthEnergy extends EnergyFigures {
   readonly totals: EnergyTotals;
 }
 
+/** Options of {@link monthlyEnergy}: the rating, the zone and the gap limit. */
 export interface MonthlyEnergyOptions extends IntegrateOptions {
   /** Rating of the unit, kW. */
   readonly ratedKw: number;
@@ -29,8 +30,10 @@ export interface MonthlyEnergyOptions extends IntegrateOptions {
 /**
  * Figures of every month from the first sample's to the last sample's, in time order; a month between them without samples is listed with coverage 0.
  * @example
- * const { samples } = energySamplesFrom(hydro, log);
- * monthlyEnergy(samples, { ratedKw: 50, timeZone: 'Europe/Oslo' })[0].month // '2026-03'
+ * const hydro = { kind: 'hydro', ratedKw: 50, designHeadM: 12, efficiency: 0.8 } as const;
+ * const { samples } = energySamplesFrom(hydro, [{ ts: Date.UTC(2026, 2, 1), kw: 5 }, { ts: Date.UTC(2026, 2, 1, 0, 10), kw: 5 }]);
+ * monthlyEnergy(samples, { ratedKw: 50, timeZone: 'Europe/Oslo' })[0]
+ * // month '2026-03', kwh 0.8333 (5 kW for 10 minutes), coveragePct 0.0224 (of 743 h)
  */
 export function monthlyEnergy(samples: EnergySamples, options: MonthlyEnergyOptions): MonthEnergy[] {
   if (samples.length === 0) return [];
