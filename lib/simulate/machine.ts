@@ -1,0 +1,513 @@
+/**
+ * One simulated generating unit: the resource (wind or water), the prime
+ * mover's speed control, the generator's electrical and thermal state, the
+ * faults, and the sensors that report it all as a telemetry sample.
+ *
+ * Electrical model: lib/physics/generator-model (E = V + I·(R + jX) per
+ * phase, E from Ke at magnet temperature, R copper at winding temperature,
+ * X = 2π·f·L, f = poles·rpm/120). The load is chosen per kind:
+ * - wind units feed a rectifier and inverter; the generator sees a
+ *   rectifier-like load of displacement power factor 0.95 lagging;
+ * - hydro units feed a resistive load through an electronic load
+ *   controller (ballast heaters take what the consumers do not), power
+ *   factor 1.
+ * Thermal model: one thermal mass, the stator winding, heated by I² and
+ * relaxing to its coolant with a time constant; the magnets sit at the
+ * stator temperature.
+ */
+import type { Nameplate } from '../contract/nameplate';
+import { TELEMETRY_FIELDS } from '../contract/telemetry';
+import { SQRT3 } from '../physics/emf';
+import { emfLineVolts, type GeneratorSpec, type OperatingPoint, type TerminalReadings } from '../physics/generator-model';
+import { electricalHz } from '../physics/synchronous-speed';
+import { copperOhmAt } from '../physics/winding-resistance';
+import { reactanceOhm } from '../physics/reactance';
+import { powerCurveLookup } from '../energy/power-curve';
+import { normaliseWindSpeedMs } from '../energy/air-density';
+import { hydroPowerKw } from '../energy/hydro-power';
+import { faultEffects, validateFaultPlan, type FaultEffects, type FaultPlan, type FaultSettings } from './faults';
+import { Ar1, gaussian, mulberry32, seedFor } from './random';
+import { zoneOffsetMinutes, type SiteWeather } from './weather';
+
+/** Displacement power factor of the rectifier-like load of a wind unit (common practice, no published source). */
+export const WIND_LOAD_POWER_FACTOR = 0.95;
+/** Power factor of the resistive load of a hydro unit under an electronic load controller. */
+export const HYDRO_LOAD_POWER_FACTOR = 1;
+/** Winding temperature rise over coolant at rated current, K (class F insulation run at class B rise, common practice). */
+export const RATED_RISE_K = { wind: 60, hydro: 55 } as const;
+/** Thermal time constant of the stator winding, s (small machines: tens of minutes, common practice). */
+export const THERMAL_TAU_S = { wind: 25 * 60, hydro: 40 * 60 } as const;
+/** Integral time scale of the turbulence at hub height, s (a few seconds at small hub heights, common practice). */
+export const TURBULENCE_TAU_S = 6;
+/** Hydro units stop below this fraction of design flow and start again above START. */
+const HYDRO_STOP_FRACTION = 0.12;
+const HYDRO_START_FRACTION = 0.18;
+/** A wind unit restarts after cut-out once the wind has stayed this far below cut-out for RESTART_MS. */
+const RESTART_MARGIN_MS = 4;
+const RESTART_MS = 10 * 60_000;
+/** Winding temperature at which the rated current is worked out, °C. */
+const RATED_WINDING_C = 80;
+
+/** How a unit's logger writes `ts`. */
+export type TimestampFormat = 'epoch-ms' | 'iso-utc' | 'iso-local';
+
+/** What a unit's logger reports beyond `ts`, `rpm`, `vab`, `ia`, `kw`. */
+export interface UnitChannels {
+  /** Terminal frequency. */
+  readonly hz: boolean;
+  /** All three line voltages and phase currents (else `vab` and `ia` only). */
+  readonly threePhase: boolean;
+  /** Air density from the logger's own pressure and temperature sensors (wind). */
+  readonly airDensity: boolean;
+}
+
+/** What the scenario says about one unit beyond its nameplate. */
+export interface UnitScenario {
+  readonly tsFormat: TimestampFormat;
+  readonly channels: UnitChannels;
+  /** Resource at this unit over the site's (wind: speed-up of its spot; hydro: share of the intake). */
+  readonly exposure: number;
+  readonly faults: readonly FaultPlan[];
+}
+
+/** Scenario of a unit the demo does not describe: healthy, every channel, UTC ISO times. */
+export const DEFAULT_UNIT_SCENARIO: UnitScenario = {
+  tsFormat: 'iso-utc',
+  channels: { hz: true, threePhase: true, airDensity: false },
+  exposure: 1,
+  faults: [],
+};
+
+/** A sample as published: contract field names, `ts` as the unit writes it. */
+export type PublishedSample = { ts: number | string } & Partial<Record<Exclude<(typeof TELEMETRY_FIELDS)[number], 'ts'>, number>>;
+
+/** What really happened at a step, for tests and the run's state. */
+export interface UnitTruth {
+  readonly tMs: number;
+  readonly mode: 'generating' | 'idling' | 'stopped';
+  readonly rpm: number;
+  readonly hz: number;
+  /** Mean open-circuit line EMF behind the terminals, V. */
+  readonly emfLlV: number;
+  /** Ke at this moment (flux loss and magnet temperature included), V per 1000 rpm. */
+  readonly keNowVPerKrpm: number;
+  readonly magnetC: number;
+  readonly statorC: number;
+  readonly ohmPerPhase: number;
+  readonly reactanceOhm: number;
+  readonly powerFactor: number;
+  readonly terminals: TerminalReadings;
+  readonly effects: FaultEffects;
+  readonly coolantC: number;
+  readonly windMs?: number;
+  readonly airKgM3?: number;
+  readonly flowM3s?: number;
+  readonly headM?: number;
+  readonly overspeed: boolean;
+}
+
+/** Options of a unit model. */
+export interface UnitModelOptions {
+  readonly seed: number;
+  readonly faults: FaultSettings;
+  /** Multiplies every sensor's noise; 0 reports the truth (rounded as a logger would). */
+  readonly noiseScale?: number;
+}
+
+const round = (v: number, step: number) => Math.round(v / step) * step;
+const fix = (v: number, digits: number) => Number(v.toFixed(digits));
+
+/** Formats `tMs` with the UTC offset of `timeZone`, e.g. 2026-03-01T13:00:00.500+01:00. */
+export function isoWithOffset(tMs: number, offsetMinutes: number): string {
+  const local = new Date(tMs + offsetMinutes * 60_000).toISOString().slice(0, -1);
+  const sign = offsetMinutes < 0 ? '-' : '+';
+  const abs = Math.abs(offsetMinutes);
+  return `${local}${sign}${String(Math.floor(abs / 60)).padStart(2, '0')}:${String(abs % 60).padStart(2, '0')}`;
+}
+
+/**
+ * Terminal readings of `spec` at `point`, as lib/physics generatorTerminals
+ * gives them (same circuit, same load, same per-phase EMF factors), with the
+ * phase current in closed form instead of a numeric search: a backfill
+ * steps millions of times. Per phase, with V = P/(I·cos φ) and the drops
+ * a = R·cos φ + X·sin φ, b = X·cos φ − R·sin φ, the circuit
+ * E² = (V + a·I)² + (b·I)² becomes |Z|²·I⁴ + (2a·P′ − E²)·I² + P′² = 0
+ * with P′ = P/cos φ, a quadratic in I²; the smaller root is the stable
+ * operating point (higher terminal voltage). Undefined when the machine
+ * cannot deliver the asked power at that speed. Tests hold it equal to
+ * generatorTerminals.
+ * @example terminalReadings({ keVPerKrpm: 400, keRefC: 20, magnet: 'ndfeb', poles: 24, phaseOhm: 0.3, phaseMh: 2 }, { rpm: 1000, kw: 10 })?.ia // ≈ 14.92
+ */
+export function terminalReadings(spec: GeneratorSpec, point: OperatingPoint): TerminalReadings | undefined {
+  const powerFactor = point.powerFactor ?? 1;
+  if (!(powerFactor > 0 && powerFactor <= 1)) throw new RangeError(`powerFactor must be above 0 and at most 1, got ${powerFactor}`);
+  if (!(point.kw >= 0) || !Number.isFinite(point.kw)) throw new RangeError(`kw must be 0 kW or more, got ${point.kw}`);
+  const fluxFactor = point.fluxFactor ?? 1;
+  if (!(fluxFactor > 0) || !Number.isFinite(fluxFactor)) throw new RangeError(`fluxFactor must be above 0, got ${fluxFactor}`);
+  const factors = point.phaseEmfFactors ?? [1, 1, 1];
+  for (const f of factors) {
+    if (!(f > 0) || !Number.isFinite(f)) throw new RangeError(`phaseEmfFactors must all be above 0, got ${factors.join(', ')}`);
+  }
+  const hz = electricalHz(spec.poles, point.rpm);
+  const emfPhaseV = (emfLineVolts(spec, point.rpm, point.magnetC ?? spec.keRefC) * fluxFactor) / SQRT3;
+  const ohm = copperOhmAt(spec.phaseOhm, point.windingC ?? 20);
+  const x = reactanceOhm(hz, spec.phaseMh);
+  const meanFactor = (factors[0] + factors[1] + factors[2]) / 3;
+  const sinPhi = Math.sqrt(1 - powerFactor * powerFactor);
+  const a = ohm * powerFactor + x * sinPhi;
+  const b = x * powerFactor - ohm * sinPhi;
+  let currentA = 0;
+  if (point.kw > 0) {
+    const e = emfPhaseV * meanFactor;
+    if (e === 0) return undefined;
+    const pPrime = (point.kw * 1000) / 3 / powerFactor;
+    const z2 = ohm * ohm + x * x;
+    if (z2 === 0) currentA = pPrime / e;
+    else {
+      const c = e * e - 2 * a * pPrime;
+      const disc = c * c - 4 * z2 * pPrime * pPrime;
+      if (!(c > 0) || disc < 0) return undefined;
+      // 2P′²/(c + √disc) is the smaller root without cancellation.
+      currentA = Math.sqrt((2 * pPrime * pPrime) / (c + Math.sqrt(disc)));
+    }
+  }
+  const inPhaseDrop = currentA * a;
+  const quadratureDrop = currentA * b;
+  const re: number[] = [];
+  const im: number[] = [];
+  let watts = 0;
+  for (let k = 0; k < 3; k++) {
+    const ek = emfPhaseV * (factors[k] as number);
+    let v = ek;
+    if (currentA > 0) {
+      const inPhase2 = ek * ek - quadratureDrop * quadratureDrop;
+      if (inPhase2 < 0) return undefined;
+      v = Math.sqrt(inPhase2) - inPhaseDrop;
+      if (!(v > 0)) return undefined;
+    }
+    // E leads V by the angle of (V + a·I) + j·b·I.
+    const angle = (-2 * Math.PI * k) / 3 - (currentA > 0 ? Math.atan2(quadratureDrop, v + inPhaseDrop) : 0);
+    re.push(v * Math.cos(angle));
+    im.push(v * Math.sin(angle));
+    watts += v * currentA * powerFactor;
+  }
+  const line = (i: number, j: number) => Math.hypot((re[i] as number) - (re[j] as number), (im[i] as number) - (im[j] as number));
+  return {
+    hz,
+    emfLlV: emfPhaseV * meanFactor * SQRT3,
+    vab: line(0, 1),
+    vbc: line(1, 2),
+    vca: line(2, 0),
+    ia: currentA,
+    ib: currentA,
+    ic: currentA,
+    kw: watts / 1000,
+    powerFactor,
+  };
+}
+
+/** Wind speed, m/s, at which a power curve first reaches (99 % of) rated power. */
+export function ratedWindMs(np: Nameplate): number {
+  const curve = np.powerCurve ?? [];
+  for (let i = 0; i < curve.length; i++) {
+    const p = curve[i]!;
+    if (p.kw >= 0.99 * np.ratedKw) {
+      const before = curve[i - 1];
+      if (before === undefined || p.kw === before.kw) return p.ms;
+      const target = 0.99 * np.ratedKw;
+      return before.ms + ((p.ms - before.ms) * (target - before.kw)) / (p.kw - before.kw);
+    }
+  }
+  const last = curve[curve.length - 1];
+  if (last === undefined) throw new RangeError(`unit ${np.id}: powerCurve is required for a wind unit`);
+  return last.ms;
+}
+
+/**
+ * The simulated unit. `step(tMs)` advances it to `tMs` (epoch ms, rising)
+ * and returns the published sample with the truth behind it.
+ */
+export class UnitModel {
+  readonly spec: GeneratorSpec;
+  readonly powerFactor: number;
+  /** Phase current at rated power and speed, A. */
+  readonly ratedCurrentA: number;
+  /** Tip-speed ratio the speed control holds below rated wind. */
+  readonly tipSpeedRatio: number;
+  readonly ratedWindMs: number;
+  private readonly kwAt: (windMs: number) => number;
+  private readonly normal: () => number;
+  private readonly turbulence: Ar1;
+  private readonly governor: Ar1;
+  private readonly converter: Ar1;
+  private readonly flowRipple: Ar1;
+  private readonly levelRipple: Ar1;
+  private readonly noise: number;
+  private readonly rotorTauS: number;
+  private readonly speedTauS: number;
+  private lastMs: number | undefined;
+  private statorC = 20;
+  private rotorWindMs = 0;
+  private rpm = 0;
+  private stoppedUntilMs = -Infinity;
+  private connected = false;
+  private hydroRunning = true;
+
+  constructor(
+    readonly nameplate: Nameplate,
+    readonly weather: SiteWeather,
+    readonly scenario: UnitScenario,
+    readonly options: UnitModelOptions,
+  ) {
+    scenario.faults.forEach(validateFaultPlan);
+    const np = nameplate;
+    this.spec = {
+      keVPerKrpm: np.keVPerKrpm,
+      keRefC: np.keRefC,
+      magnet: np.magnet,
+      magnetTempCoeffPctPerC: np.magnetTempCoeffPctPerC,
+      poles: np.poles,
+      phaseOhm: np.phaseOhm,
+      phaseMh: np.phaseMh,
+    };
+    this.powerFactor = np.kind === 'wind' ? WIND_LOAD_POWER_FACTOR : HYDRO_LOAD_POWER_FACTOR;
+    const rated = terminalReadings(this.spec, {
+      rpm: np.ratedRpm,
+      kw: np.ratedKw,
+      powerFactor: this.powerFactor,
+      magnetC: RATED_WINDING_C,
+      windingC: RATED_WINDING_C,
+    });
+    this.ratedCurrentA = rated?.ia ?? (np.ratedKw * 1000) / (SQRT3 * ((np.keVPerKrpm * np.ratedRpm) / 1000) * this.powerFactor);
+    const u = (what: string) => mulberry32(seedFor(options.seed, `${np.siteId}/${np.id}/${what}`));
+    this.normal = gaussian(u('sensors'));
+    this.turbulence = new Ar1(TURBULENCE_TAU_S, 1, u('turbulence'));
+    this.governor = new Ar1(5, 1, u('governor'));
+    this.converter = new Ar1(30, 1, u('converter'));
+    this.flowRipple = new Ar1(60, 1, u('flow'));
+    this.levelRipple = new Ar1(600, 1, u('level'));
+    this.noise = options.noiseScale ?? 1;
+    if (!(this.noise >= 0)) throw new RangeError(`noiseScale must be 0 or more, got ${this.noise}`);
+    if (np.kind === 'wind') {
+      if (np.powerCurve === undefined || np.cutInMs === undefined || np.cutOutMs === undefined || np.rotorDiameterM === undefined) {
+        throw new RangeError(`unit ${np.id}: powerCurve, cutInMs, cutOutMs and rotorDiameterM are required for a wind unit`);
+      }
+      this.kwAt = powerCurveLookup({ points: np.powerCurve, cutInMs: np.cutInMs, cutOutMs: np.cutOutMs });
+      this.ratedWindMs = ratedWindMs(np);
+      this.tipSpeedRatio = ((np.ratedRpm * 2 * Math.PI) / 60) * (np.rotorDiameterM / 2) / this.ratedWindMs;
+      // Bigger rotors are slower to follow the wind (inertia grows faster than torque).
+      this.rotorTauS = 2 + 0.3 * np.rotorDiameterM;
+      this.speedTauS = 0.6 * this.rotorTauS;
+    } else {
+      if (np.designFlowM3s === undefined || np.designHeadM === undefined || np.efficiency === undefined) {
+        throw new RangeError(`unit ${np.id}: designHeadM, designFlowM3s and efficiency are required for a hydro unit`);
+      }
+      this.kwAt = () => 0;
+      this.ratedWindMs = 0;
+      this.tipSpeedRatio = 0;
+      this.rotorTauS = 3;
+      this.speedTauS = 3;
+    }
+  }
+
+  /** Sensor noise: a standard normal draw times the unit's noise scale. */
+  private n(): number {
+    return this.noise === 0 ? 0 : this.noise * this.normal();
+  }
+
+  /** Advances the unit to `tMs` and returns what its logger reports, and the truth. */
+  step(tMs: number): { sample: PublishedSample; truth: UnitTruth } {
+    if (!Number.isFinite(tMs)) throw new RangeError(`tMs must be a finite epoch ms, got ${tMs}`);
+    const first = this.lastMs === undefined;
+    if (!first && tMs < this.lastMs!) throw new RangeError(`tMs must not go back: ${tMs} after ${this.lastMs}`);
+    const dtS = first ? 0 : Math.min(3600, (tMs - this.lastMs!) / 1000);
+    this.lastMs = tMs;
+    const np = this.nameplate;
+    const effects = faultEffects(this.scenario.faults, tMs, this.options.faults);
+    const lag = (tauS: number) => (first ? 1 : 1 - Math.exp(-dtS / tauS));
+
+    let kwAsked = 0;
+    let mode: UnitTruth['mode'] = 'generating';
+    let coolantC: number;
+    let ambientC: number;
+    let windMs: number | undefined;
+    let airKgM3: number | undefined;
+    let flowM3s: number | undefined;
+    let headM: number | undefined;
+    let overspeed = false;
+
+    if (np.kind === 'wind') {
+      const meanMs = this.weather.windMeanMs(tMs) * this.scenario.exposure;
+      const ti = this.weather.climate.turbulenceIntensity ?? 0.12;
+      let v = Math.max(0, meanMs * (1 + ti * this.turbulence.step(dtS)));
+      if (effects.overspeedGust !== undefined) {
+        v = Math.max(v, effects.overspeedGust * this.ratedWindMs);
+        overspeed = true;
+      }
+      windMs = v;
+      ambientC = this.weather.airC(tMs);
+      coolantC = ambientC;
+      airKgM3 = this.weather.airDensityKgM3(tMs);
+      this.rotorWindMs += (v - this.rotorWindMs) * lag(this.rotorTauS);
+      const cutIn = np.cutInMs!;
+      const cutOut = np.cutOutMs!;
+      if (this.rotorWindMs >= cutOut) this.stoppedUntilMs = tMs + RESTART_MS;
+      else if (tMs < this.stoppedUntilMs && this.rotorWindMs > cutOut - RESTART_MARGIN_MS) this.stoppedUntilMs = tMs + RESTART_MS;
+      const stopped = tMs < this.stoppedUntilMs;
+      // Connect at cut-in, let go half a metre per second lower (hysteresis).
+      if (stopped) this.connected = false;
+      else if (this.rotorWindMs >= cutIn) this.connected = true;
+      else if (this.rotorWindMs < cutIn - 0.5) this.connected = false;
+      const freeRpm = ((this.tipSpeedRatio * this.rotorWindMs) / (np.rotorDiameterM! / 2)) * (60 / (2 * Math.PI));
+      let targetRpm: number;
+      if (stopped) {
+        mode = 'stopped';
+        targetRpm = 0;
+      } else {
+        // Speed regulation holds rated speed above rated wind, except while it lags a gust.
+        // In a late-regulated gust the rotor runs free up to the gust's own speed, then the furl catches it.
+        targetRpm = Math.min(freeRpm, overspeed ? effects.overspeedGust! * np.ratedRpm : np.ratedRpm);
+        targetRpm *= 1 + 0.004 * this.governor.step(dtS);
+        if (this.connected) {
+          const vn = normaliseWindSpeedMs(this.rotorWindMs, airKgM3);
+          kwAsked = Math.max(0, this.kwAt(Math.min(vn, cutOut - 1e-9)) * (1 + 0.01 * this.converter.step(dtS)));
+        } else mode = 'idling';
+      }
+      this.rpm += (Math.max(0, targetRpm) - this.rpm) * lag(this.speedTauS);
+    } else {
+      const designQ = np.designFlowM3s!;
+      const available = this.weather.availableFlowFraction(tMs) * this.scenario.exposure;
+      if (this.hydroRunning && available < HYDRO_STOP_FRACTION) this.hydroRunning = false;
+      else if (!this.hydroRunning && available > HYDRO_START_FRACTION) this.hydroRunning = true;
+      // The turbine takes at most its design flow; the rest spills over the weir.
+      const q = this.hydroRunning ? Math.min(1, available) * (1 + 0.01 * this.flowRipple.step(dtS)) : 0;
+      flowM3s = q * designQ;
+      // Penstock friction grows with the square of the flow; the forebay level wanders a little.
+      headM = np.designHeadM! * (1.03 - 0.03 * q * q) * (1 + 0.002 * this.levelRipple.step(dtS));
+      // Part-flow efficiency falls off (turbine hill chart, common practice).
+      const eta = np.efficiency! * (1 - 0.25 * (1 - Math.min(1, q)) ** 2);
+      kwAsked = Math.min(np.ratedKw, hydroPowerKw(flowM3s, headM, eta));
+      ambientC = this.weather.waterC(tMs);
+      // The powerhouse air the generator breathes runs a few kelvin above the water.
+      coolantC = ambientC + 4;
+      const targetRpm = this.hydroRunning ? np.ratedRpm * (1 + 0.003 * this.governor.step(dtS)) : 0;
+      this.rpm += (targetRpm - this.rpm) * lag(this.speedTauS);
+      if (!this.hydroRunning) {
+        mode = 'stopped';
+        kwAsked = 0;
+      }
+    }
+    if (this.rpm < 0.5 || mode === 'idling') kwAsked = 0;
+    if (this.rpm < 1e-3) this.rpm = 0;
+
+    if (first) this.statorC = coolantC;
+    let terminals = this.terminals(kwAsked, effects);
+    if (first) {
+      // Start warm: at the steady temperature of the first operating point.
+      this.statorC = this.steadyStatorC(coolantC, terminals.ia, effects);
+      terminals = this.terminals(kwAsked, effects);
+    }
+    const magnetC = this.statorC;
+    const hz = terminals.hz;
+    const truth: UnitTruth = {
+      tMs,
+      mode: kwAsked > 0 ? 'generating' : mode === 'generating' ? 'idling' : mode,
+      rpm: this.rpm,
+      hz,
+      emfLlV: terminals.emfLlV,
+      keNowVPerKrpm: this.rpm > 0 ? (terminals.emfLlV * 1000) / this.rpm : 0,
+      magnetC,
+      statorC: this.statorC,
+      ohmPerPhase: copperOhmAt(np.phaseOhm, this.statorC),
+      reactanceOhm: reactanceOhm(hz, np.phaseMh),
+      powerFactor: terminals.powerFactor,
+      terminals,
+      effects,
+      coolantC,
+      ...(windMs !== undefined ? { windMs, airKgM3: airKgM3! } : {}),
+      ...(flowM3s !== undefined ? { flowM3s, headM: headM! } : {}),
+      overspeed: overspeed && this.rpm > np.maxRpm,
+    };
+    const sample = this.report(truth, ambientC, effects);
+    // Heat for the next step from this step's current.
+    const steady = this.steadyStatorC(coolantC, terminals.ia, effects);
+    this.statorC = steady + (this.statorC - steady) * Math.exp(-dtS / THERMAL_TAU_S[np.kind]);
+    return { sample, truth };
+  }
+
+  private steadyStatorC(coolantC: number, currentA: number, effects: FaultEffects): number {
+    const np = this.nameplate;
+    const load = currentA / this.ratedCurrentA;
+    const speed = this.rpm / np.ratedRpm;
+    return coolantC + RATED_RISE_K[np.kind] * load * load + effects.extraHeatingKAtRated * speed * speed;
+  }
+
+  /** Terminal readings at the current speed and temperature; a load beyond what the machine can carry is limited. */
+  private terminals(kwAsked: number, effects: FaultEffects): TerminalReadings {
+    const point = {
+      rpm: this.rpm,
+      powerFactor: this.powerFactor,
+      magnetC: this.statorC,
+      windingC: this.statorC,
+      fluxFactor: effects.fluxFactor,
+      phaseEmfFactors: effects.phaseEmfFactors,
+    };
+    let kw = kwAsked;
+    // The converter limits its current when the machine cannot carry the asked power at this speed.
+    for (let i = 0; i < 40 && kw > 0; i++) {
+      const r = terminalReadings(this.spec, { ...point, kw });
+      if (r !== undefined) return r;
+      kw *= 0.85;
+    }
+    return terminalReadings(this.spec, { ...point, kw: 0 })!;
+  }
+
+  /** What the unit's sensors and logger report. */
+  private report(truth: UnitTruth, ambientC: number, effects: FaultEffects): PublishedSample {
+    const ch = this.scenario.channels;
+    const t = truth.terminals;
+    const pos = (v: number) => Math.max(0, v);
+    // Meter classes: voltage 0.1 %, current 0.2 %, power 0.2 %, speed 0.1 %
+    // (typical panel meters and pick-ups, common practice).
+    const volts = (v: number) => fix(pos(v * (1 + 0.001 * this.n())), 1);
+    const amps = (i: number) => (i === 0 ? 0 : fix(pos(i * (1 + 0.002 * this.n()) + 0.01 * this.n()), 2));
+    const rpmRead = truth.rpm === 0 ? 0 : pos(truth.rpm * effects.speedReadingFactor * (1 + 0.001 * this.n()) + 0.05 * this.n());
+    const sample: PublishedSample = { ts: this.formatTs(truth.tMs), rpm: fix(rpmRead, 1) };
+    if (ch.hz) sample.hz = fix(pos(t.hz * (1 + 0.0002 * this.n())), 2);
+    sample.vab = volts(t.vab);
+    if (ch.threePhase) {
+      sample.vbc = volts(t.vbc);
+      sample.vca = volts(t.vca);
+    }
+    sample.ia = amps(t.ia);
+    if (ch.threePhase) {
+      sample.ib = amps(t.ib);
+      sample.ic = amps(t.ic);
+    }
+    sample.kw = t.kw === 0 ? 0 : fix(pos(t.kw * (1 + 0.002 * this.n())), 3);
+    sample.statorC = fix(truth.statorC + 0.2 * this.n(), 1);
+    sample.ambientC = fix(ambientC + 0.1 * this.n(), 1);
+    if (truth.windMs !== undefined) {
+      sample.windMs = fix(pos(truth.windMs * (1 + 0.01 * this.n()) + 0.05 * this.n()), 2);
+      if (ch.airDensity) sample.airKgM3 = fix(truth.airKgM3! * (1 + 0.002 * this.n()), 4);
+    }
+    if (truth.flowM3s !== undefined) {
+      sample.flowM3s = fix(pos(truth.flowM3s * (1 + 0.01 * this.n())), 4);
+      sample.headM = fix(pos(truth.headM! + 0.03 * this.n()), 2);
+    }
+    return sample;
+  }
+
+  private formatTs(tMs: number): number | string {
+    const ms = round(tMs, 1);
+    switch (this.scenario.tsFormat) {
+      case 'epoch-ms':
+        return ms;
+      case 'iso-utc':
+        return new Date(ms).toISOString();
+      case 'iso-local':
+        return isoWithOffset(ms, zoneOffsetMinutes(ms, this.weather.timeZone));
+    }
+  }
+}
+
