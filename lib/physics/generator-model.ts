@@ -71,9 +71,6 @@ export interface TerminalReadings {
   readonly powerFactor: number;
 }
 
-/** Iterations of the one-dimensional searches; 2⁻⁸⁰ of the bracket is far below any meter's resolution. */
-const SEARCH_STEPS = 80;
-
 /**
  * Open-circuit line-to-line EMF in V of `spec` at `rpm` rev/min with magnets at `magnetC` °C.
  * @example emfLineVolts({ keVPerKrpm: 400, keRefC: 20, magnet: 'ndfeb', poles: 24, phaseOhm: 0.3, phaseMh: 2 }, 300, 20) // 120
@@ -100,32 +97,23 @@ export function currentForPower(p: {
     throw new RangeError(`wattsPerPhase must be 0 W or more, got ${p.wattsPerPhase}`);
   }
   if (!(p.powerFactor > 0 && p.powerFactor <= 1)) throw new RangeError(`powerFactor must be above 0 and at most 1, got ${p.powerFactor}`);
+  if (!(p.emfPhaseV >= 0) || !Number.isFinite(p.emfPhaseV)) throw new RangeError(`emfPhaseV must be 0 V or more, got ${p.emfPhaseV}`);
+  if (!(p.ohmPerPhase >= 0) || !(p.reactanceOhm >= 0)) {
+    throw new RangeError(`ohmPerPhase and reactanceOhm must be 0 Ω or more, got ${p.ohmPerPhase} and ${p.reactanceOhm}`);
+  }
   if (p.wattsPerPhase === 0) return 0;
-  const power = (currentA: number) => {
-    const v = terminalPhaseVolts({ ...p, currentA });
-    return v === undefined ? 0 : v * currentA * p.powerFactor;
-  };
-  const impedance = Math.hypot(p.ohmPerPhase, p.reactanceOhm);
-  if (impedance === 0) return p.wattsPerPhase / (p.emfPhaseV * p.powerFactor);
-  // Power rises from 0 A, peaks, and falls to 0 at short circuit (E/|Z|).
-  let lo = 0;
-  let hi = p.emfPhaseV / impedance;
-  for (let i = 0; i < SEARCH_STEPS; i++) {
-    const m1 = lo + (hi - lo) / 3;
-    const m2 = hi - (hi - lo) / 3;
-    if (power(m1) < power(m2)) lo = m1;
-    else hi = m2;
-  }
-  const peakA = (lo + hi) / 2;
-  if (power(peakA) < p.wattsPerPhase) return undefined;
-  lo = 0;
-  hi = peakA;
-  for (let i = 0; i < SEARCH_STEPS; i++) {
-    const mid = (lo + hi) / 2;
-    if (power(mid) < p.wattsPerPhase) lo = mid;
-    else hi = mid;
-  }
-  return (lo + hi) / 2;
+  // With w = P/pf, a = I·α, b = I·β (α, β the in-phase and quadrature drops per ampere) and
+  // |E|² = (V + a)² + b², V·I = w becomes |Z|²·u² − (E² − 2wα)·u + w² = 0 in u = I².
+  // The smaller root is the working point (high voltage side of the power curve).
+  const sinPhi = Math.sqrt(1 - p.powerFactor * p.powerFactor);
+  const alpha = p.ohmPerPhase * p.powerFactor + p.reactanceOhm * sinPhi;
+  const z2 = p.ohmPerPhase * p.ohmPerPhase + p.reactanceOhm * p.reactanceOhm;
+  const w = p.wattsPerPhase / p.powerFactor;
+  const b = p.emfPhaseV * p.emfPhaseV - 2 * w * alpha;
+  const disc = b * b - 4 * z2 * w * w;
+  if (!(b > 0) || disc < 0) return undefined;
+  // 2w²/(b + √disc) is the smaller root without cancellation, and is w²/E² when |Z| = 0.
+  return Math.sqrt((2 * w * w) / (b + Math.sqrt(disc)));
 }
 
 /**
