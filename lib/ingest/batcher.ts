@@ -1,0 +1,377 @@
+/**
+ * Gathers decoded messages from every connection into batches, commits one
+ * batch at a time, and only then releases the acknowledgements of its
+ * messages. A batch closes at `batchSamples` samples or `batchMs` after its
+ * first message, whichever comes first.
+ *
+ * Memory is bounded by `bufferSamples`: at the limit the connections stop
+ * reading (the broker keeps the rest). When the database cannot be reached
+ * the batch is retried with backoff, nothing is acknowledged, the outage is
+ * logged once and its end once.
+ */
+import type { DatabaseHandle } from '../../db/client';
+import type { Logger } from '../log/logger';
+import { isTransientDbError } from './sql';
+import type { UnitDirectory } from './unit-directory';
+import { writeBatch, type BatchResult, type DecodedMessage } from './writer';
+
+/** A decoded message waiting for its batch, with the means to acknowledge it. */
+export interface PendingMessage extends DecodedMessage {
+  /** QoS of the delivery (0 needs no acknowledgement and is never redelivered). */
+  qos: number;
+  /** Sends the acknowledgement, if the connection it came on is still the same. */
+  ack(): void;
+  /** False once the connection it came on has closed: the broker will deliver it again. */
+  alive(): boolean;
+}
+
+export interface BatcherOptions {
+  handle: DatabaseHandle;
+  directory: UnitDirectory;
+  log: Logger;
+  batchSamples: number;
+  batchMs: number;
+  bufferSamples: number;
+  /** First retry delay after a failed commit, ms; doubles up to `maxRetryMs`. */
+  retryMs?: number;
+  maxRetryMs?: number;
+  now?: () => number;
+}
+
+export interface BatcherCounters {
+  messages: number;
+  samplesIn: number;
+  rowsCommitted: number;
+  duplicates: number;
+  quarantined: number;
+  presenceUpdates: number;
+  batches: number;
+  failedCommits: number;
+  /** Messages let go unacknowledged because their connection closed (the broker delivers them again). */
+  releasedForRedelivery: number;
+  /** Messages with fields the contract does not know. */
+  unknownFieldMessages: number;
+}
+
+export interface BatcherState {
+  counters: BatcherCounters;
+  bufferedSamples: number;
+  bufferLimit: number;
+  committing: boolean;
+  database: { reachable: boolean; outageSinceMs?: number; outages: number; lastError?: string };
+  lastBatch?: { samples: number; rows: number; ms: number; lagMs?: number; waitMs: number; atMs: number };
+}
+
+function weightOf(m: DecodedMessage): number {
+  return Math.max(1, m.samples.length + m.quarantined.length);
+}
+
+const sleep = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve, ms));
+
+export function createBatcher(options: BatcherOptions) {
+  const { handle, directory, log, batchSamples, batchMs, bufferSamples } = options;
+  const retryMs = options.retryMs ?? 250;
+  const maxRetryMs = options.maxRetryMs ?? 10_000;
+  const now = options.now ?? Date.now;
+
+  let pending: PendingMessage[] = [];
+  let pendingWeight = 0;
+  let inFlightWeight = 0;
+  let firstPendingAt = 0;
+  let timer: NodeJS.Timeout | undefined;
+  let committing: Promise<void> | undefined;
+  let stopped = false;
+  /** Set when stopping without (or no longer) draining: no more commits start. */
+  let stopAbort = false;
+  let roomWaiters: Array<() => void> = [];
+  const warnedUnits = new Set<string>();
+  const counters: BatcherCounters = {
+    messages: 0,
+    samplesIn: 0,
+    rowsCommitted: 0,
+    duplicates: 0,
+    quarantined: 0,
+    presenceUpdates: 0,
+    batches: 0,
+    failedCommits: 0,
+    releasedForRedelivery: 0,
+    unknownFieldMessages: 0,
+  };
+  const database: BatcherState['database'] = { reachable: true, outages: 0 };
+  let lastBatch: BatcherState['lastBatch'];
+
+  const held = () => pendingWeight + inFlightWeight;
+
+  function releaseRoom() {
+    if (held() >= bufferSamples || roomWaiters.length === 0) return;
+    const waiters = roomWaiters;
+    roomWaiters = [];
+    for (const w of waiters) w();
+  }
+
+  function schedule() {
+    if (stopped || committing) return;
+    if (pendingWeight >= batchSamples) {
+      void commitLoop();
+      return;
+    }
+    if (pending.length > 0 && !timer) {
+      const wait = Math.max(0, firstPendingAt + batchMs - now());
+      timer = setTimeout(() => {
+        timer = undefined;
+        void commitLoop();
+      }, wait);
+    }
+  }
+
+  /** Takes up to `batchSamples` of the pending messages. */
+  function take(): PendingMessage[] {
+    let weight = 0;
+    let n = 0;
+    while (n < pending.length && (n === 0 || weight + weightOf(pending[n]!) <= batchSamples)) weight += weightOf(pending[n++]!);
+    const batch = pending.slice(0, n);
+    pending = pending.slice(n);
+    pendingWeight -= weight;
+    inFlightWeight += weight;
+    firstPendingAt = pending[0]?.receivedAtMs ?? 0;
+    return batch;
+  }
+
+  function dropDead(batch: PendingMessage[]): PendingMessage[] {
+    const live = batch.filter((m) => m.qos === 0 || m.alive());
+    counters.releasedForRedelivery += batch.length - live.length;
+    return live;
+  }
+
+  function account(result: BatchResult, batch: PendingMessage[], startedAt: number) {
+    counters.batches++;
+    counters.rowsCommitted += result.inserted;
+    counters.duplicates += result.duplicates;
+    counters.quarantined += result.quarantined;
+    counters.presenceUpdates += result.presence;
+    for (const [unitId, fields] of result.unknownFieldsByUnit) {
+      if (warnedUnits.has(unitId)) continue;
+      warnedUnits.add(unitId);
+      log.warn('unknown fields ignored (not stored); reported once per unit', { unit: unitId, fields: [...fields].sort() });
+    }
+    const end = now();
+    let samples = 0;
+    let oldest = Infinity;
+    for (const m of batch) {
+      samples += m.samples.length;
+      if (m.receivedAtMs < oldest) oldest = m.receivedAtMs;
+    }
+    lastBatch = {
+      samples,
+      rows: result.inserted,
+      ms: end - startedAt,
+      lagMs: result.newestTsMs === undefined ? undefined : end - result.newestTsMs,
+      waitMs: Number.isFinite(oldest) ? end - oldest : 0,
+      atMs: end,
+    };
+  }
+
+  function noteOutage(error: unknown) {
+    counters.failedCommits++;
+    database.lastError = error instanceof Error ? error.message : String(error);
+    if (database.reachable) {
+      database.reachable = false;
+      database.outageSinceMs = now();
+      database.outages++;
+      log.error('database unreachable: holding messages unacknowledged and retrying', {
+        database: handle.location,
+        error,
+        bufferedSamples: held(),
+      });
+    }
+  }
+
+  function noteRecovery() {
+    if (database.reachable) return;
+    database.reachable = true;
+    log.info('database reachable again', {
+      database: handle.location,
+      outageMs: now() - (database.outageSinceMs ?? now()),
+      bufferedSamples: held(),
+    });
+    database.outageSinceMs = undefined;
+  }
+
+  type Attempt = { ok: true } | { ok: false; error: unknown } | { aborted: true };
+
+  /**
+   * Writes `batch` and acknowledges its messages, waiting out an unreachable
+   * database with backoff; a refusal for any other reason comes back.
+   */
+  async function attempt(batch: PendingMessage[]): Promise<Attempt> {
+    let delay = retryMs;
+    for (;;) {
+      batch = dropDead(batch);
+      if (batch.length === 0) return { ok: true };
+      const startedAt = now();
+      try {
+        const result = await writeBatch({ handle, directory, messages: batch });
+        noteRecovery();
+        account(result, batch, startedAt);
+        for (const m of batch) m.ack();
+        return { ok: true };
+      } catch (error) {
+        if (!isTransientDbError(error)) {
+          counters.failedCommits++;
+          return { ok: false, error };
+        }
+        noteOutage(error);
+        if (stopAbort) return { aborted: true };
+        await sleep(delay);
+        if (stopAbort) return { aborted: true };
+        delay = Math.min(maxRetryMs, delay * 2);
+      }
+    }
+  }
+
+  /** Commits a batch; a batch the database refuses twice is committed message by message. */
+  async function commitBatch(batch: PendingMessage[]): Promise<void> {
+    const weight = batch.reduce((s, m) => s + weightOf(m), 0);
+    try {
+      let result = await attempt(batch);
+      if ('ok' in result && !result.ok) {
+        log.warn('database refused a batch; retrying it once', { error: result.error, messages: batch.length });
+        await sleep(retryMs);
+        result = await attempt(batch);
+      }
+      if (!('ok' in result) || result.ok) return;
+      log.warn('database refused a batch again; committing its messages one by one', { error: result.error, messages: batch.length });
+      for (const m of batch) {
+        const alone = await attempt([m]);
+        if (!('ok' in alone)) return;
+        if (alone.ok) continue;
+        // Refused on its own: quarantine it whole, with the database's words.
+        const reason = `the database refused this message: ${alone.error instanceof Error ? alone.error.message : String(alone.error)}`;
+        log.error('message refused by the database; quarantining it', { topic: m.topic, error: alone.error });
+        const stand: PendingMessage = { ...m, kind: 'bad-topic', samples: [], quarantined: [], unknownFields: [], topicProblem: reason };
+        const quarantined = await attempt([stand]);
+        if (!('ok' in quarantined)) return;
+        if (!quarantined.ok) {
+          log.error('message neither stored nor quarantined; left unacknowledged for the broker to deliver again', {
+            topic: m.topic,
+            error: quarantined.error,
+          });
+        }
+      }
+    } finally {
+      inFlightWeight -= weight;
+    }
+  }
+
+  async function commitLoop(): Promise<void> {
+    if (committing) return committing;
+    if (timer) {
+      clearTimeout(timer);
+      timer = undefined;
+    }
+    committing = (async () => {
+      try {
+        while (pending.length > 0 && !stopAbort) {
+          const batch = take();
+          await commitBatch(batch);
+          releaseRoom();
+          // Keep batches full under load: commit again at once only when a full batch waits.
+          if (!stopped && pendingWeight < batchSamples) break;
+        }
+      } finally {
+        committing = undefined;
+        releaseRoom();
+        schedule();
+      }
+    })();
+    return committing;
+  }
+
+  return {
+    /** Adds a message; resolves at once while there is room, later when the buffer has drained below its limit. */
+    add(message: PendingMessage): void {
+      counters.messages++;
+      counters.samplesIn += message.samples.length;
+      if (message.unknownFields.length > 0) counters.unknownFieldMessages++;
+      if (pending.length === 0) firstPendingAt = message.receivedAtMs;
+      pending.push(message);
+      pendingWeight += weightOf(message);
+      schedule();
+    },
+    /** True while the buffer has room for more. */
+    hasRoom: () => held() < bufferSamples,
+    /** Resolves when the buffer has room again. */
+    room(): Promise<void> {
+      if (held() < bufferSamples || stopped) return Promise.resolve();
+      return new Promise((resolve) => roomWaiters.push(resolve));
+    },
+    /** Lets go of pending messages whose connection closed: the broker will deliver them again. */
+    releaseDead(): void {
+      const before = pending.length;
+      const live: PendingMessage[] = [];
+      for (const m of pending) {
+        if (m.qos > 0 && !m.alive()) {
+          counters.releasedForRedelivery++;
+          pendingWeight -= weightOf(m);
+        } else live.push(m);
+      }
+      if (live.length !== before) {
+        pending = live;
+        releaseRoom();
+      }
+    },
+    state(): BatcherState {
+      return {
+        counters: { ...counters },
+        bufferedSamples: held(),
+        bufferLimit: bufferSamples,
+        committing: committing !== undefined,
+        database: { ...database },
+        lastBatch: lastBatch && { ...lastBatch },
+      };
+    },
+    /**
+     * Stops. With `drain`, commits what is pending first (for at most
+     * `timeoutMs` while the database is out of reach); without, lets it go
+     * unacknowledged for the broker to deliver again.
+     */
+    async stop({ drain, timeoutMs = 10_000 }: { drain: boolean; timeoutMs?: number }): Promise<void> {
+      stopped = true;
+      if (timer) {
+        clearTimeout(timer);
+        timer = undefined;
+      }
+      const waiters = roomWaiters;
+      roomWaiters = [];
+      for (const w of waiters) w();
+      if (!drain) {
+        stopAbort = true;
+        pending = [];
+        pendingWeight = 0;
+        return;
+      }
+      const deadline = now() + timeoutMs;
+      const drained = (async () => {
+        while (pending.length > 0 || committing) {
+          await (committing ?? commitLoop());
+          if (stopAbort) return;
+        }
+      })();
+      let timeout: NodeJS.Timeout | undefined;
+      await Promise.race([
+        drained,
+        new Promise<void>((resolve) => {
+          timeout = setTimeout(() => {
+            stopAbort = true;
+            log.warn('stopping with messages not committed; the broker will deliver them again', { bufferedSamples: held() });
+            resolve();
+          }, Math.max(0, deadline - now()));
+        }),
+      ]);
+      if (timeout) clearTimeout(timeout);
+      await Promise.race([committing, sleep(1000)]);
+    },
+  };
+}
+
+export type Batcher = ReturnType<typeof createBatcher>;

@@ -1,0 +1,228 @@
+/**
+ * Turns one MQTT payload into validated samples and quarantine entries.
+ * Never throws on bad input: every way a payload can be wrong ends as a
+ * quarantine entry whose reason says what to fix. One bad sample in an array
+ * does not reject its good neighbours.
+ */
+import {
+  describeValue,
+  parseTelemetrySample,
+  telemetrySampleSchema,
+  type TelemetrySample,
+} from '../contract/telemetry';
+
+/** Largest payload the ingester reads, bytes (256 KiB). */
+export const MAX_PAYLOAD_BYTES = 256 * 1024;
+
+/** Deepest JSON nesting accepted; a sample is a flat object, so anything deep is a mistake. */
+export const MAX_JSON_DEPTH = 32;
+
+/** Characters of a payload kept in a quarantine row. */
+export const QUARANTINE_PAYLOAD_CHARS = 4096;
+
+/** Characters of one sample kept in a quarantine row. */
+export const QUARANTINE_SAMPLE_CHARS = 1024;
+
+const MS_PER_DAY = 86_400_000;
+
+/** Something that could not be stored, and why. */
+export interface QuarantineEntry {
+  /** Index of the sample in an array payload; null for the whole payload or a single-object payload. */
+  sampleIndex: number | null;
+  /** The payload or sample as text, cut to a bounded size. */
+  payload: string;
+  /** Size of the whole payload or sample before cutting, bytes. */
+  payloadBytes: number;
+  /** What is wrong, in words a person can act on. */
+  reason: string;
+}
+
+export interface DecodedTelemetry {
+  samples: TelemetrySample[];
+  quarantined: QuarantineEntry[];
+  /** Names of fields the contract does not know, seen in valid samples (kept nowhere). */
+  unknownFields: string[];
+}
+
+/** Text PostgreSQL can hold: no NUL characters (they become the escape `\u0000`). */
+export function pgSafeText(text: string): string {
+  return text.includes('\u0000') ? text.replaceAll('\u0000', '\\u0000') : text;
+}
+
+/**
+ * `text` cut to `maxChars`, saying how long the whole was when anything is
+ * missing (`totalBytes` may say that `text` is already only the head).
+ * @example boundText('abcdef', 3) // 'abc… (6 bytes in all)'
+ */
+export function boundText(text: string, maxChars: number, totalBytes = Buffer.byteLength(text)): string {
+  const safe = pgSafeText(text);
+  if (safe.length > maxChars) return `${safe.slice(0, maxChars)}… (${totalBytes} bytes in all)`;
+  if (totalBytes > Buffer.byteLength(text)) return `${safe}… (${totalBytes} bytes in all)`;
+  return safe;
+}
+
+function kib(bytes: number): string {
+  return `${(bytes / 1024).toFixed(1)} KiB`;
+}
+
+/** Nesting depth of a JSON text, strings skipped; stops counting at `limit + 1`. */
+export function jsonDepth(text: string, limit = MAX_JSON_DEPTH): number {
+  let depth = 0;
+  let max = 0;
+  let inString = false;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (inString) {
+      if (c === 92 /* \ */) i++;
+      else if (c === 34 /* " */) inString = false;
+    } else if (c === 34) inString = true;
+    else if (c === 123 /* { */ || c === 91 /* [ */) {
+      depth++;
+      if (depth > max) {
+        max = depth;
+        if (max > limit) return max;
+      }
+    } else if (c === 125 /* } */ || c === 93 /* ] */) depth--;
+  }
+  return max;
+}
+
+const utf8 = new TextDecoder('utf-8', { fatal: true });
+
+export interface TelemetryDecoderOptions {
+  /** Samples older than this many days are refused (they would be deleted at once by retention). */
+  retentionDays: number;
+}
+
+/**
+ * Builds a decoder. `decode(payload, receivedAtMs)` validates against the
+ * contract schema with "now" = the time the message was received.
+ * @example createTelemetryDecoder({ retentionDays: 90 }).decode(Buffer.from('{"ts":1767225600000,"rpm":300,"vab":120}'), 1767225600000).samples.length // 1
+ */
+export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOptions) {
+  let nowMs = Date.now();
+  const schema = telemetrySampleSchema(() => nowMs);
+  const whole = (payload: string, payloadBytes: number, reason: string): DecodedTelemetry => ({
+    samples: [],
+    quarantined: [{ sampleIndex: null, payload: boundText(payload, QUARANTINE_PAYLOAD_CHARS, payloadBytes), payloadBytes, reason }],
+    unknownFields: [],
+  });
+
+  function decode(payload: Uint8Array, receivedAtMs: number): DecodedTelemetry {
+    nowMs = receivedAtMs;
+    const bytes = payload.byteLength;
+    if (bytes > MAX_PAYLOAD_BYTES) {
+      const head = Buffer.from(payload.buffer, payload.byteOffset, Math.min(bytes, QUARANTINE_PAYLOAD_CHARS)).toString('utf8');
+      return whole(
+        head,
+        bytes,
+        `payload of ${kib(bytes)} is over the ${kib(MAX_PAYLOAD_BYTES)} limit of one message; send fewer samples per message`,
+      );
+    }
+    if (bytes === 0) return whole('', 0, 'payload is empty; expected a JSON sample object or an array of them');
+    let text: string;
+    try {
+      text = utf8.decode(payload);
+    } catch {
+      const head = Buffer.from(payload.buffer, payload.byteOffset, Math.min(bytes, 3000)).toString('base64');
+      return whole(`base64:${head}`, bytes, 'payload is not UTF-8 text; expected a JSON sample object or an array of them');
+    }
+    const depth = jsonDepth(text);
+    if (depth > MAX_JSON_DEPTH) {
+      return whole(
+        text,
+        bytes,
+        `payload nests more than ${MAX_JSON_DEPTH} levels deep; a sample is a flat JSON object and a payload one sample or an array of them`,
+      );
+    }
+    let parsed: unknown;
+    try {
+      parsed = JSON.parse(text);
+    } catch (error) {
+      return whole(text, bytes, `payload is not JSON (${(error as Error).message}); expected a sample object or an array of them`);
+    }
+    let raws: unknown[];
+    let single = false;
+    if (Array.isArray(parsed)) {
+      if (parsed.length === 0) return whole(text, bytes, 'payload is an empty array: it holds no samples');
+      raws = parsed;
+    } else if (parsed !== null && typeof parsed === 'object') {
+      raws = [parsed];
+      single = true;
+    } else {
+      return whole(text, bytes, `payload must be a JSON sample object or an array of them, got ${describeValue(parsed)}`);
+    }
+
+    const oldestMs = receivedAtMs - retentionDays * MS_PER_DAY;
+    const samples: TelemetrySample[] = [];
+    const quarantined: QuarantineEntry[] = [];
+    const unknown = new Set<string>();
+    const seenTs = new Map<number, number>();
+    const rejectSample = (index: number, raw: unknown, reason: string) => {
+      const sampleText = single ? text : (JSON.stringify(raw) ?? String(raw));
+      quarantined.push({
+        sampleIndex: single ? null : index,
+        payload: boundText(sampleText, single ? QUARANTINE_PAYLOAD_CHARS : QUARANTINE_SAMPLE_CHARS),
+        payloadBytes: single ? bytes : Buffer.byteLength(sampleText),
+        reason,
+      });
+    };
+    raws.forEach((raw, index) => {
+      const result = parseTelemetrySample(raw, schema);
+      if (!result.ok) {
+        rejectSample(index, raw, result.problems.join('; '));
+        return;
+      }
+      const sample = result.sample;
+      // The column keeps whole milliseconds; rounding here keeps keys and rows alike.
+      sample.ts = Math.round(sample.ts);
+      if (sample.ts < oldestMs) {
+        rejectSample(
+          index,
+          raw,
+          `ts: ${new Date(sample.ts).toISOString()} is older than the ${retentionDays}-day retention (RETENTION_DAYS); it would be deleted at once`,
+        );
+        return;
+      }
+      const first = seenTs.get(sample.ts);
+      if (first !== undefined) {
+        rejectSample(index, raw, `ts: ${new Date(sample.ts).toISOString()} repeats sample [${first}] of this message; only the first was kept`);
+        return;
+      }
+      seenTs.set(sample.ts, index);
+      for (const field of result.unknownFields) unknown.add(field);
+      samples.push(sample);
+    });
+    return { samples, quarantined, unknownFields: [...unknown] };
+  }
+
+  return { decode };
+}
+
+export type TelemetryDecoder = ReturnType<typeof createTelemetryDecoder>;
+
+export type DecodedPresence =
+  | { ok: true; presence: 'online' | 'offline' }
+  /** An empty payload: someone cleared the retained presence; it carries no state. */
+  | { ok: true; presence: null }
+  | { ok: false; entry: QuarantineEntry };
+
+/**
+ * Reads a presence payload: `online` or `offline` (surrounding white space allowed).
+ * @example decodePresencePayload(Buffer.from('offline')) // { ok: true, presence: 'offline' }
+ */
+export function decodePresencePayload(payload: Uint8Array): DecodedPresence {
+  if (payload.byteLength === 0) return { ok: true, presence: null };
+  const text = Buffer.from(payload.buffer, payload.byteOffset, Math.min(payload.byteLength, QUARANTINE_PAYLOAD_CHARS)).toString('utf8');
+  const value = text.trim();
+  if (payload.byteLength <= 64 && (value === 'online' || value === 'offline')) return { ok: true, presence: value };
+  return {
+    ok: false,
+    entry: {
+      sampleIndex: null,
+      payload: boundText(text, QUARANTINE_PAYLOAD_CHARS, payload.byteLength),
+      payloadBytes: payload.byteLength,
+      reason: `presence must be "online" or "offline", got ${describeValue(value)}`,
+    },
+  };
+}

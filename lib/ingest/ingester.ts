@@ -1,0 +1,270 @@
+/**
+ * The ingester: MQTT telemetry and presence into PostgreSQL (or PGlite).
+ * Connections → decode and validate at arrival → one batcher → samples,
+ * rollups, quarantine and unit status in one transaction per batch → the
+ * acknowledgements of that batch's messages. See lib/ingest/DESIGN.md.
+ */
+import { hostname } from 'node:os';
+import type { DatabaseHandle } from '../../db/client';
+import type { Logger } from '../log/logger';
+import { registerComponent, type ComponentState } from '../server/registry';
+import { createBatcher, type BatcherCounters } from './batcher';
+import { openConnectionPool, type ConnectionState, type Delivery } from './connections';
+import { QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload } from './decode';
+import { runTelemetryMaintenance } from './maintenance';
+import { sqlRunner } from './sql';
+import { DEFAULT_SHARE_GROUP, parseUnitTopic } from './topics';
+import { createUnitDirectory } from './unit-directory';
+import type { DecodedMessage } from './writer';
+
+export interface IngesterOptions {
+  handle: DatabaseHandle;
+  brokerUrl: string;
+  /** true: MQTT 5 shared subscription (Mosquitto 2 and the like); false: MQTT 3.1.1 plain subscription (the embedded broker). */
+  mqtt5: boolean;
+  /** Stable id of this ingester; its connections are `<clientId>-<i>`. Give each ingester its own; default `millrace-ingest-<host>`. */
+  clientId?: string;
+  /** Connections in the share group (MQTT 5). */
+  connections: number;
+  /** A batch closes at this many samples... */
+  batchSamples: number;
+  /** ...or this long after its first message, ms. */
+  batchMs: number;
+  /** Most samples held uncommitted; at the limit the ingester stops reading from the broker. */
+  bufferSamples: number;
+  log: Logger;
+  username?: string;
+  password?: string;
+  /** Raw samples are kept this many days (RETENTION_DAYS); default 90. */
+  retentionDays?: number;
+  /** Share group of the subscription; default `millrace-ingest` (contract, section 3). */
+  shareGroup?: string;
+  /** Run retention and make partitions ahead at start and daily; default true. */
+  maintenance?: boolean;
+  /** How long the broker keeps this ingester's sessions while it is away, s; default 7 days. */
+  sessionExpirySeconds?: number;
+  /** Register with the component registry for GET /api/health; default true. */
+  register?: boolean;
+}
+
+export interface IngesterState extends ComponentState {
+  status: 'ok' | 'degraded' | 'down';
+  reason?: string;
+  startedAt: string;
+  broker: { url: string; mqtt5: boolean; connected: number; connections: ConnectionState[] };
+  database: { location: string; backend: string; reachable: boolean; outageSince?: string; outages: number; lastError?: string };
+  counters: BatcherCounters & { reconnects: number };
+  samplesPerSecond: number;
+  rowsPerSecond: number;
+  /** Commit time minus the newest sample time of the last batch, ms. */
+  lagMs?: number;
+  /** Commit time minus the receipt of the oldest message of the last batch, ms. */
+  commitDelayMs?: number;
+  lastBatch?: { samples: number; rows: number; ms: number; at: string };
+  buffer: { samples: number; limit: number; fillPct: number };
+  retention: { days: number; lastRunAt?: string; droppedPartitions: number; lastError?: string };
+}
+
+export interface Ingester {
+  /** Drains: commits what it holds, sends the acknowledgements, disconnects (sessions kept). */
+  stop(): Promise<void>;
+  /** Stops at once, as a crash would: nothing more is committed or acknowledged. */
+  abort(): Promise<void>;
+  /** Resolves once every connection has subscribed. */
+  ready(): Promise<void>;
+  state(): IngesterState;
+}
+
+const DAY_MS = 86_400_000;
+
+/** The client id of an ingester that was given none: `millrace-ingest-<host>`. */
+export function defaultIngestClientId(): string {
+  return `millrace-ingest-${hostname().toLowerCase().replace(/[^a-z0-9._-]/g, '-').slice(0, 40)}`;
+}
+const RATE_WINDOW_MS = 10_000;
+
+/**
+ * Starts the ingester on an open database. Resolves once the database has
+ * been read (units, retention); the connections keep trying the broker in the
+ * background (see `ready`).
+ */
+export async function startIngester(options: IngesterOptions): Promise<Ingester> {
+  const { handle, log } = options;
+  const clientId = options.clientId ?? defaultIngestClientId();
+  const retentionDays = options.retentionDays ?? 90;
+  const startedAt = new Date();
+  const directory = createUnitDirectory({ db: sqlRunner(handle) });
+  const batcher = createBatcher({
+    handle,
+    directory,
+    log,
+    batchSamples: options.batchSamples,
+    batchMs: options.batchMs,
+    bufferSamples: options.bufferSamples,
+  });
+  const decoder = createTelemetryDecoder({ retentionDays });
+  const retention: IngesterState['retention'] = { days: retentionDays, droppedPartitions: 0 };
+  let stopped = false;
+  const timers: NodeJS.Timeout[] = [];
+
+  const maintain = async () => {
+    try {
+      const result = await runTelemetryMaintenance({ handle, retentionDays });
+      retention.lastRunAt = new Date().toISOString();
+      retention.droppedPartitions += result.dropped.length;
+      retention.lastError = undefined;
+      if (result.dropped.length > 0) {
+        log.info('raw samples past retention dropped', { partitions: result.dropped, retentionDays });
+      }
+      return true;
+    } catch (error) {
+      retention.lastError = error instanceof Error ? error.message : String(error);
+      log.error('retention and partition upkeep failed; trying again in a minute', { error });
+      return false;
+    }
+  };
+  if (options.maintenance !== false) {
+    const ok = await maintain();
+    const daily = setInterval(() => void maintain(), DAY_MS);
+    daily.unref();
+    timers.push(daily);
+    if (!ok) {
+      const retry = setInterval(async () => {
+        if (await maintain()) clearInterval(retry);
+      }, 60_000);
+      retry.unref();
+      timers.push(retry);
+    }
+  }
+
+  const take = (delivery: Delivery): void | Promise<void> => {
+    const topic = parseUnitTopic(delivery.topic);
+    const base = {
+      topic: delivery.topic,
+      receivedAtMs: delivery.receivedAtMs,
+      retained: delivery.retain,
+      payloadBytes: delivery.payload.byteLength,
+      preview: boundText(delivery.payload.subarray(0, QUARANTINE_PAYLOAD_CHARS).toString('utf8'), QUARANTINE_PAYLOAD_CHARS, delivery.payload.byteLength),
+      unknownFields: [] as string[],
+      samples: [],
+      quarantined: [],
+    };
+    let message: DecodedMessage;
+    if (!topic.ok) {
+      message = { ...base, kind: 'bad-topic', siteId: topic.siteId, unitId: topic.unitId, topicProblem: topic.reason };
+    } else if (topic.kind === 'presence') {
+      const presence = decodePresencePayload(delivery.payload);
+      message = presence.ok
+        ? { ...base, kind: 'presence', siteId: topic.siteId, unitId: topic.unitId, presence: presence.presence }
+        : { ...base, kind: 'presence', siteId: topic.siteId, unitId: topic.unitId, presence: null, quarantined: [presence.entry] };
+    } else {
+      const decoded = decoder.decode(delivery.payload, delivery.receivedAtMs);
+      message = { ...base, kind: 'telemetry', siteId: topic.siteId, unitId: topic.unitId, ...decoded };
+    }
+    batcher.add({ ...message, qos: delivery.qos, ack: delivery.ack, alive: delivery.alive });
+    if (!batcher.hasRoom()) return batcher.room();
+  };
+
+  const pool = openConnectionPool({
+    brokerUrl: options.brokerUrl,
+    mqtt5: options.mqtt5,
+    clientId,
+    connections: options.connections,
+    shareGroup: options.shareGroup ?? DEFAULT_SHARE_GROUP,
+    username: options.username,
+    password: options.password,
+    log,
+    sessionExpirySeconds: options.sessionExpirySeconds,
+    onDelivery: take,
+    onConnectionClosed: () => batcher.releaseDead(),
+  });
+  // A refused subscription is logged by the pool; keep the rejection from going unhandled.
+  const ready = pool.ready();
+  ready.catch(() => {});
+
+  const history: Array<{ at: number; samples: number; rows: number }> = [];
+  const sampler = setInterval(() => {
+    const c = batcher.state().counters;
+    history.push({ at: Date.now(), samples: c.samplesIn, rows: c.rowsCommitted });
+    while (history.length > 0 && history[0]!.at < Date.now() - RATE_WINDOW_MS - 1000) history.shift();
+  }, 1000);
+  sampler.unref();
+  timers.push(sampler);
+
+  const state = (): IngesterState => {
+    const b = batcher.state();
+    const connections = pool.states();
+    const connected = connections.filter((c) => c.connected).length;
+    const first = history[0];
+    const nowMs = Date.now();
+    const span = first ? (nowMs - first.at) / 1000 : 0;
+    const fillPct = Math.round((b.bufferedSamples / b.bufferLimit) * 1000) / 10;
+    let status: IngesterState['status'] = 'ok';
+    let reason: string | undefined;
+    if (stopped) [status, reason] = ['down', 'stopped'];
+    else if (connected === 0) [status, reason] = ['down', 'not connected to the broker'];
+    else if (!b.database.reachable) [status, reason] = ['degraded', 'database unreachable: holding messages unacknowledged'];
+    else if (connected < connections.length) [status, reason] = ['degraded', `${connections.length - connected} of ${connections.length} broker connections down`];
+    else if (fillPct >= 90) [status, reason] = ['degraded', 'buffer nearly full: the database is not keeping up'];
+    return {
+      status,
+      reason,
+      startedAt: startedAt.toISOString(),
+      broker: { url: options.brokerUrl, mqtt5: options.mqtt5, connected, connections },
+      database: {
+        location: handle.location,
+        backend: handle.backend,
+        reachable: b.database.reachable,
+        outageSince: b.database.outageSinceMs === undefined ? undefined : new Date(b.database.outageSinceMs).toISOString(),
+        outages: b.database.outages,
+        lastError: b.database.lastError,
+      },
+      counters: { ...b.counters, reconnects: connections.reduce((s, c) => s + c.reconnects, 0) },
+      samplesPerSecond: span > 0 ? Math.round((b.counters.samplesIn - first!.samples) / span) : 0,
+      rowsPerSecond: span > 0 ? Math.round((b.counters.rowsCommitted - first!.rows) / span) : 0,
+      lagMs: b.lastBatch?.lagMs,
+      commitDelayMs: b.lastBatch?.waitMs,
+      lastBatch: b.lastBatch && { samples: b.lastBatch.samples, rows: b.lastBatch.rows, ms: b.lastBatch.ms, at: new Date(b.lastBatch.atMs).toISOString() },
+      buffer: { samples: b.bufferedSamples, limit: b.bufferLimit, fillPct },
+      retention: { ...retention },
+    };
+  };
+
+  if (options.register !== false) registerComponent('ingester', { state });
+  log.info('ingester started', {
+    broker: options.brokerUrl,
+    mqtt5: options.mqtt5,
+    clientId,
+    database: handle.location,
+    batchSamples: options.batchSamples,
+    batchMs: options.batchMs,
+    bufferSamples: options.bufferSamples,
+    retentionDays,
+  });
+
+  const finish = () => {
+    stopped = true;
+    for (const t of timers) clearInterval(t);
+  };
+
+  return {
+    ready: () => ready,
+    state,
+    async stop() {
+      if (stopped) return;
+      pool.pause();
+      await batcher.stop({ drain: true });
+      await pool.close();
+      finish();
+      log.info('ingester stopped', { counters: batcher.state().counters });
+    },
+    async abort() {
+      if (stopped) return;
+      pool.pause();
+      await pool.close({ force: true });
+      await batcher.stop({ drain: false });
+      finish();
+      log.warn('ingester aborted; unacknowledged messages will be delivered again', {});
+    },
+  };
+}

@@ -1,0 +1,81 @@
+/**
+ * `npm run ingest`: the standalone ingester, plain Node. Reads the
+ * configuration, opens the database, subscribes to MQTT_URL (an MQTT 5
+ * broker such as Mosquitto 2) and runs until SIGINT or SIGTERM, when it
+ * drains: commits what it holds, acknowledges it, disconnects, exits.
+ */
+import { openDatabase } from '../../db/client';
+import { getConfig } from '../config/env';
+import { createLogger } from '../log/logger';
+import { startIngester } from './ingester';
+
+async function main(): Promise<number> {
+  let config;
+  try {
+    config = getConfig();
+  } catch (error) {
+    process.stderr.write(`millrace ingest: ${(error as Error).message}\n`);
+    return 2;
+  }
+  const log = createLogger('ingest', config.LOG_LEVEL);
+  if (!config.MQTT_URL) {
+    process.stderr.write(
+      'millrace ingest: the standalone ingester needs MQTT_URL, the address of an MQTT 5 broker such as Mosquitto ' +
+        '(e.g. MQTT_URL=mqtt://127.0.0.1:1883); the embedded set-up, with its own broker and ingester inside the server, is `npm start`\n',
+    );
+    return 2;
+  }
+  const handle = await openDatabase({ url: config.DATABASE_URL, dataDir: config.DATA_DIR, maxConnections: 4 });
+  const ingester = await startIngester({
+    handle,
+    brokerUrl: config.MQTT_URL,
+    mqtt5: true,
+    clientId: config.INGEST_CLIENT_ID,
+    connections: config.INGEST_CONNECTIONS,
+    batchSamples: config.INGEST_BATCH_SAMPLES,
+    batchMs: config.INGEST_BATCH_MS,
+    bufferSamples: config.INGEST_BUFFER_SAMPLES,
+    username: config.MQTT_USERNAME,
+    password: config.MQTT_PASSWORD,
+    retentionDays: config.RETENTION_DAYS,
+    log,
+  });
+  ingester.ready().catch(async () => {
+    // The pool logged why (a refused subscription); nothing can be ingested.
+    await ingester.abort();
+    await handle.close();
+    process.exit(1);
+  });
+
+  return new Promise<number>((resolve) => {
+    let stopping = false;
+    const onSignal = (signal: NodeJS.Signals) => {
+      if (stopping) {
+        log.warn('second signal: exiting without draining', { signal });
+        process.exit(1);
+      }
+      stopping = true;
+      log.info('draining before exit', { signal });
+      void ingester
+        .stop()
+        .then(() => handle.close())
+        .then(
+          () => resolve(0),
+          (error) => {
+            log.error('draining failed', { error });
+            resolve(1);
+          },
+        );
+    };
+    process.on('SIGINT', onSignal);
+    process.on('SIGTERM', onSignal);
+  });
+}
+
+main().then(
+  (code) => process.exit(code),
+  (error) => {
+    process.stderr.write(`millrace ingest: ${error instanceof Error ? error.message : String(error)}\n`);
+    process.exit(1);
+  },
+);

@@ -1,0 +1,322 @@
+/**
+ * The statements of the ingest path. Every write takes whole columns as
+ * array parameters and `unnest`s them: one statement per table per batch,
+ * whatever the batch size, with no limit from the 65,534 parameters of a
+ * statement, on postgres-js and PGlite alike. Times travel as epoch
+ * milliseconds (float8) and come back the same way.
+ */
+import type { TelemetrySample } from '../contract/telemetry';
+import type { EnergyPoint, RollupDelta, Stat } from './rollups';
+import type { SqlRunner } from './sql';
+
+const SAMPLE_COLUMNS = [
+  ['rpm', 'rpm'],
+  ['hz', 'hz'],
+  ['vab', 'vab'],
+  ['vbc', 'vbc'],
+  ['vca', 'vca'],
+  ['ia', 'ia'],
+  ['ib', 'ib'],
+  ['ic', 'ic'],
+  ['kw', 'kw'],
+  ['statorC', 'stator_c'],
+  ['ambientC', 'ambient_c'],
+  ['windMs', 'wind_ms'],
+  ['airKgM3', 'air_kg_m3'],
+  ['flowM3s', 'flow_m3s'],
+  ['headM', 'head_m'],
+] as const satisfies ReadonlyArray<readonly [keyof TelemetrySample, string]>;
+
+const ms = (param: string) => `to_timestamp(${param} / 1000.0)`;
+const epochMs = (column: string) => `(extract(epoch from ${column}) * 1000)::float8`;
+
+const INSERT_SAMPLES = `
+insert into telemetry_samples (unit_key, ts, ${SAMPLE_COLUMNS.map(([, c]) => c).join(', ')})
+select k, ${ms('t')}, ${SAMPLE_COLUMNS.map(([, c]) => c).join(', ')}
+from unnest($1::int4[], $2::float8[], ${SAMPLE_COLUMNS.map((_, i) => `$${i + 3}::float4[]`).join(', ')})
+  as u(k, t, ${SAMPLE_COLUMNS.map(([, c]) => c).join(', ')})
+on conflict do nothing
+returning unit_key, ${epochMs('ts')} as t`;
+
+/** A sample bound for one unit. */
+export interface SampleRow {
+  unitKey: number;
+  sample: TelemetrySample;
+}
+
+/**
+ * Inserts the rows, ignoring any (unit, ts) already stored; returns the keys
+ * of the rows actually inserted.
+ */
+export async function insertSampleRows({ tx, rows }: { tx: SqlRunner; rows: readonly SampleRow[] }): Promise<Array<{ unitKey: number; ts: number }>> {
+  if (rows.length === 0) return [];
+  const n = rows.length;
+  const keys = new Array<number>(n);
+  const ts = new Array<number>(n);
+  const columns = SAMPLE_COLUMNS.map(() => new Array<number | null>(n));
+  for (let i = 0; i < n; i++) {
+    const { unitKey, sample } = rows[i]!;
+    keys[i] = unitKey;
+    ts[i] = sample.ts;
+    for (let c = 0; c < SAMPLE_COLUMNS.length; c++) columns[c]![i] = (sample[SAMPLE_COLUMNS[c]![0]] as number | undefined) ?? null;
+  }
+  const inserted = await tx.query<{ unit_key: number; t: number }>(INSERT_SAMPLES, [keys, ts, ...columns]);
+  return inserted.map((r) => ({ unitKey: Number(r.unit_key), ts: Number(r.t) }));
+}
+
+/** Advisory lock space of the ingest transactions (any fixed number unique to millrace). */
+const UNIT_LOCK_SPACE = 7271502;
+/** Units share this many locks; a transaction never holds more. */
+const UNIT_LOCK_STRIPES = 1024;
+
+/**
+ * Serialises transactions that write the same units (several ingesters, or
+ * overlapping batches), so that each reads the neighbours the other committed.
+ * Locks are taken in one order, so two such transactions never deadlock.
+ */
+export async function lockUnitKeys({ tx, unitKeys }: { tx: SqlRunner; unitKeys: readonly number[] }): Promise<void> {
+  if (unitKeys.length === 0) return;
+  await tx.query(
+    `select count(pg_advisory_xact_lock(${UNIT_LOCK_SPACE}, s))::int as n
+     from (select distinct (k % ${UNIT_LOCK_STRIPES}) as s from unnest($1::int4[]) as u(k) order by 1) as o`,
+    [unitKeys],
+  );
+}
+
+/** One unit's window of new samples with `kw`, epoch ms. */
+export interface EnergyWindow {
+  unitKey: number;
+  fromMs: number;
+  toMs: number;
+}
+
+/**
+ * The stored samples with `kw` around and inside each window: the last within
+ * 10 minutes before it, all inside, the first within 10 minutes after.
+ */
+export async function getEnergyNeighbours({
+  tx,
+  windows,
+}: {
+  tx: SqlRunner;
+  windows: readonly EnergyWindow[];
+}): Promise<Map<number, EnergyPoint[]>> {
+  const out = new Map<number, EnergyPoint[]>();
+  if (windows.length === 0) return out;
+  const rows = await tx.query<{ k: number; t: number; kw: number }>(
+    `select w.k, ${epochMs('s.ts')} as t, s.kw::float8 as kw
+     from unnest($1::int4[], $2::float8[], $3::float8[]) as w(k, lo, hi)
+     cross join lateral (
+       (select p.ts, p.kw from telemetry_samples p
+         where p.unit_key = w.k and p.kw is not null
+           and p.ts < ${ms('w.lo')} and p.ts >= ${ms('(w.lo - 600000)')}
+         order by p.ts desc limit 1)
+       union all
+       (select p.ts, p.kw from telemetry_samples p
+         where p.unit_key = w.k and p.kw is not null and p.ts >= ${ms('w.lo')} and p.ts <= ${ms('w.hi')})
+       union all
+       (select p.ts, p.kw from telemetry_samples p
+         where p.unit_key = w.k and p.kw is not null
+           and p.ts > ${ms('w.hi')} and p.ts <= ${ms('(w.hi + 600000)')}
+         order by p.ts asc limit 1)
+     ) as s`,
+    [windows.map((w) => w.unitKey), windows.map((w) => w.fromMs), windows.map((w) => w.toMs)],
+  );
+  for (const r of rows) {
+    const key = Number(r.k);
+    let list = out.get(key);
+    if (!list) out.set(key, (list = []));
+    list.push({ ts: Number(r.t), kw: Number(r.kw) });
+  }
+  return out;
+}
+
+const STATS = ['rpm', 'vll', 'amps', 'kw', 'statorC', 'resource'] as const;
+const STAT_COLUMN: Record<(typeof STATS)[number], string> = {
+  rpm: 'rpm',
+  vll: 'vll',
+  amps: 'amps',
+  kw: 'kw',
+  statorC: 'stator_c',
+  resource: 'resource',
+};
+/** Stats whose count is the sample count (the field is required). */
+const COUNTED_BY_SAMPLES = new Set(['rpm', 'vll']);
+
+function rollupUpsert(table: string): string {
+  const cols: string[] = ['unit_key', 'bucket_start', 'samples', 'first_ts', 'last_ts', 'covered_s', 'kwh'];
+  const types: string[] = ['int4', 'float8', 'int4', 'float8', 'float8', 'float8', 'float8'];
+  const sets: string[] = [
+    'samples = r.samples + excluded.samples',
+    'first_ts = least(r.first_ts, excluded.first_ts)',
+    'last_ts = greatest(r.last_ts, excluded.last_ts)',
+    'covered_s = r.covered_s + excluded.covered_s',
+    'kwh = r.kwh + excluded.kwh',
+  ];
+  for (const stat of STATS) {
+    const c = STAT_COLUMN[stat];
+    cols.push(`${c}_min`, `${c}_max`, `${c}_sum`);
+    types.push('float4', 'float4', 'float8');
+    sets.push(
+      `${c}_min = least(r.${c}_min, excluded.${c}_min)`,
+      `${c}_max = greatest(r.${c}_max, excluded.${c}_max)`,
+      `${c}_sum = coalesce(r.${c}_sum + excluded.${c}_sum, r.${c}_sum, excluded.${c}_sum)`,
+    );
+    if (!COUNTED_BY_SAMPLES.has(stat)) {
+      cols.push(`${c}_count`);
+      types.push('int4');
+      sets.push(`${c}_count = r.${c}_count + excluded.${c}_count`);
+    }
+  }
+  const isTime = new Set(['bucket_start', 'first_ts', 'last_ts']);
+  const select = cols.map((c) => (isTime.has(c) ? ms(`u.${c}`) : `u.${c}`)).join(', ');
+  return `insert into ${table} as r (${cols.join(', ')})
+select ${select}
+from unnest(${types.map((t, i) => `$${i + 1}::${t}[]`).join(', ')}) as u(${cols.join(', ')})
+on conflict (unit_key, bucket_start) do update set ${sets.join(', ')}`;
+}
+
+const UPSERT_ROLLUPS = {
+  telemetry_rollups_10m: rollupUpsert('telemetry_rollups_10m'),
+  telemetry_rollups_daily: rollupUpsert('telemetry_rollups_daily'),
+};
+
+/** Adds the deltas to a rollup table (at most one delta per unit and bucket). */
+export async function upsertRollupDeltas({
+  tx,
+  table,
+  deltas,
+}: {
+  tx: SqlRunner;
+  table: keyof typeof UPSERT_ROLLUPS;
+  deltas: readonly RollupDelta[];
+}): Promise<void> {
+  if (deltas.length === 0) return;
+  const params: unknown[][] = [[], [], [], [], [], [], []];
+  for (const stat of STATS) {
+    params.push([], [], []);
+    if (!COUNTED_BY_SAMPLES.has(stat)) params.push([]);
+  }
+  for (const d of deltas) {
+    let p = 0;
+    params[p++]!.push(d.unitKey);
+    params[p++]!.push(d.bucketStartMs);
+    params[p++]!.push(d.samples);
+    params[p++]!.push(d.firstTsMs);
+    params[p++]!.push(d.lastTsMs);
+    params[p++]!.push(d.coveredS);
+    params[p++]!.push(d.kwh);
+    for (const stat of STATS) {
+      const s: Stat = d[stat];
+      params[p++]!.push(s.min ?? null);
+      params[p++]!.push(s.max ?? null);
+      params[p++]!.push(s.count > 0 ? s.sum : null);
+      if (!COUNTED_BY_SAMPLES.has(stat)) params[p++]!.push(s.count);
+    }
+  }
+  await tx.query(UPSERT_ROLLUPS[table], params);
+}
+
+/** One row for the quarantine table. */
+export interface QuarantineRowInput {
+  receivedAtMs: number;
+  topic: string;
+  siteId: string | null;
+  unitId: string | null;
+  sampleIndex: number | null;
+  payload: string;
+  payloadBytes: number;
+  reason: string;
+}
+
+/** Stores quarantine rows. */
+export async function insertQuarantineRows({ tx, rows }: { tx: SqlRunner; rows: readonly QuarantineRowInput[] }): Promise<void> {
+  if (rows.length === 0) return;
+  await tx.query(
+    `insert into quarantine (received_at, topic, site_id, unit_id, sample_index, payload, payload_bytes, reason)
+     select ${ms('r')}, topic, site, unit, idx, payload, bytes, reason
+     from unnest($1::float8[], $2::text[], $3::text[], $4::text[], $5::int4[], $6::text[], $7::int4[], $8::text[])
+       as q(r, topic, site, unit, idx, payload, bytes, reason)`,
+    [
+      rows.map((r) => r.receivedAtMs),
+      rows.map((r) => r.topic),
+      rows.map((r) => r.siteId),
+      rows.map((r) => r.unitId),
+      rows.map((r) => r.sampleIndex),
+      rows.map((r) => r.payload),
+      rows.map((r) => r.payloadBytes),
+      rows.map((r) => r.reason),
+    ],
+  );
+}
+
+/** Newest sample time and receipt time of one unit in a batch. */
+export interface UnitSeen {
+  unitKey: number;
+  lastSampleTsMs: number;
+  lastReceivedAtMs: number;
+}
+
+/** Moves each unit's last sample and receipt time forward (never back). */
+export async function upsertUnitLastSeen({ tx, units }: { tx: SqlRunner; units: readonly UnitSeen[] }): Promise<void> {
+  if (units.length === 0) return;
+  await tx.query(
+    `insert into unit_status as s (unit_key, last_sample_ts, last_received_at)
+     select k, ${ms('t')}, ${ms('r')} from unnest($1::int4[], $2::float8[], $3::float8[]) as u(k, t, r)
+     on conflict (unit_key) do update set
+       last_sample_ts = greatest(s.last_sample_ts, excluded.last_sample_ts),
+       last_received_at = greatest(s.last_received_at, excluded.last_received_at)`,
+    [units.map((u) => u.unitKey), units.map((u) => u.lastSampleTsMs), units.map((u) => u.lastReceivedAtMs)],
+  );
+}
+
+/** The latest presence message of one unit in a batch. */
+export interface PresenceUpdate {
+  unitKey: number;
+  presence: 'online' | 'offline';
+  receivedAtMs: number;
+  /** Delivered as the retained message on subscribing: its time is unknown. */
+  retained: boolean;
+}
+
+/**
+ * Stores presence. A retained message that repeats the stored state keeps
+ * the stored time (it says nothing new); any change takes the receipt time.
+ */
+export async function upsertUnitPresence({ tx, updates }: { tx: SqlRunner; updates: readonly PresenceUpdate[] }): Promise<void> {
+  for (const retained of [false, true]) {
+    const some = updates.filter((u) => u.retained === retained);
+    if (some.length === 0) continue;
+    await tx.query(
+      `insert into unit_status as s (unit_key, presence, presence_at)
+       select k, p::presence_state, ${ms('r')} from unnest($1::int4[], $2::text[], $3::float8[]) as u(k, p, r)
+       on conflict (unit_key) do update set
+         presence = excluded.presence,
+         presence_at = ${
+           retained
+             ? 'case when s.presence is distinct from excluded.presence or s.presence_at is null then excluded.presence_at else s.presence_at end'
+             : 'excluded.presence_at'
+         }`,
+      [some.map((u) => u.unitKey), some.map((u) => u.presence), some.map((u) => u.receivedAtMs)],
+    );
+  }
+}
+
+/** A registered unit as the ingester needs it. */
+export interface UnitEntry {
+  key: number;
+  id: string;
+  siteId: string;
+  kind: 'wind' | 'hydro';
+}
+
+/** Registered units by id; all of them, or those named. */
+export async function getUnitEntries({ db, unitIds }: { db: SqlRunner; unitIds?: readonly string[] }): Promise<UnitEntry[]> {
+  const rows = await db.query<{ key: number; id: string; site_id: string; kind: 'wind' | 'hydro' }>(
+    unitIds
+      ? 'select key, id, site_id, kind::text as kind from units where id = any($1::text[])'
+      : 'select key, id, site_id, kind::text as kind from units',
+    unitIds ? [unitIds] : [],
+  );
+  return rows.map((r) => ({ key: Number(r.key), id: r.id, siteId: r.site_id, kind: r.kind }));
+}
