@@ -27,7 +27,7 @@ import { normaliseWindSpeedMs } from '../energy/air-density';
 import { hydroPowerKw } from '../energy/hydro-power';
 import { faultEffects, validateFaultPlan, type FaultEffects, type FaultPlan, type FaultSettings } from './faults';
 import { Ar1, gaussian, mulberry32, seedFor } from './random';
-import { zoneOffsetMinutes, type SiteWeather } from './weather';
+import { zoneOffsetMinutes, type WeatherSource } from './weather';
 
 /** Displacement power factor of the rectifier-like load of a wind unit (common practice, no published source). */
 export const WIND_LOAD_POWER_FACTOR = 0.95;
@@ -79,7 +79,7 @@ export const DEFAULT_UNIT_SCENARIO: UnitScenario = {
 };
 
 /** A sample as published: contract field names, `ts` as the unit writes it. */
-export type PublishedSample = { ts: number | string } & Partial<Record<Exclude<(typeof TELEMETRY_FIELDS)[number], 'ts'>, number>>;
+export type PublishedSample = { ts: number | string; rpm: number } & Partial<Record<Exclude<(typeof TELEMETRY_FIELDS)[number], 'ts' | 'rpm'>, number>>;
 
 /** What really happened at a step, for tests and the run's state. */
 export interface UnitTruth {
@@ -100,6 +100,8 @@ export interface UnitTruth {
   readonly effects: FaultEffects;
   readonly coolantC: number;
   readonly windMs?: number;
+  /** Wind the rotor follows (the hub wind through the rotor's inertia), m/s. */
+  readonly rotorWindMs?: number;
   readonly airKgM3?: number;
   readonly flowM3s?: number;
   readonly headM?: number;
@@ -255,7 +257,7 @@ export class UnitModel {
 
   constructor(
     readonly nameplate: Nameplate,
-    readonly weather: SiteWeather,
+    readonly weather: WeatherSource,
     readonly scenario: UnitScenario,
     readonly options: UnitModelOptions,
   ) {
@@ -424,7 +426,7 @@ export class UnitModel {
       terminals,
       effects,
       coolantC,
-      ...(windMs !== undefined ? { windMs, airKgM3: airKgM3! } : {}),
+      ...(windMs !== undefined ? { windMs, rotorWindMs: this.rotorWindMs, airKgM3: airKgM3! } : {}),
       ...(flowM3s !== undefined ? { flowM3s, headM: headM! } : {}),
       overspeed: overspeed && this.rpm > np.maxRpm,
     };
@@ -468,12 +470,13 @@ export class UnitModel {
     const t = truth.terminals;
     const pos = (v: number) => Math.max(0, v);
     // Meter classes: voltage 0.1 %, current 0.2 %, power 0.2 %, speed 0.1 %
-    // (typical panel meters and pick-ups, common practice).
-    const volts = (v: number) => fix(pos(v * (1 + 0.001 * this.n())), 1);
-    const amps = (i: number) => (i === 0 ? 0 : fix(pos(i * (1 + 0.002 * this.n()) + 0.01 * this.n()), 2));
+    // (typical panel meters and pick-ups, common practice). Loggers send
+    // floating-point readings; the digits kept are finer than the noise.
+    const volts = (v: number) => fix(pos(v * (1 + 0.001 * this.n())), 2);
+    const amps = (i: number) => (i === 0 ? 0 : fix(pos(i * (1 + 0.002 * this.n()) + 0.005 * this.n()), 3));
     const rpmRead = truth.rpm === 0 ? 0 : pos(truth.rpm * effects.speedReadingFactor * (1 + 0.001 * this.n()) + 0.05 * this.n());
-    const sample: PublishedSample = { ts: this.formatTs(truth.tMs), rpm: fix(rpmRead, 1) };
-    if (ch.hz) sample.hz = fix(pos(t.hz * (1 + 0.0002 * this.n())), 2);
+    const sample: PublishedSample = { ts: this.formatTs(truth.tMs), rpm: fix(rpmRead, 2) };
+    if (ch.hz) sample.hz = fix(pos(t.hz * (1 + 0.0002 * this.n())), 3);
     sample.vab = volts(t.vab);
     if (ch.threePhase) {
       sample.vbc = volts(t.vbc);
@@ -484,9 +487,9 @@ export class UnitModel {
       sample.ib = amps(t.ib);
       sample.ic = amps(t.ic);
     }
-    sample.kw = t.kw === 0 ? 0 : fix(pos(t.kw * (1 + 0.002 * this.n())), 3);
-    sample.statorC = fix(truth.statorC + 0.2 * this.n(), 1);
-    sample.ambientC = fix(ambientC + 0.1 * this.n(), 1);
+    sample.kw = t.kw === 0 ? 0 : fix(pos(t.kw * (1 + 0.002 * this.n())), 4);
+    sample.statorC = fix(truth.statorC + 0.2 * this.n(), 2);
+    sample.ambientC = fix(ambientC + 0.1 * this.n(), 2);
     if (truth.windMs !== undefined) {
       sample.windMs = fix(pos(truth.windMs * (1 + 0.01 * this.n()) + 0.05 * this.n()), 2);
       if (ch.airDensity) sample.airKgM3 = fix(truth.airKgM3! * (1 + 0.002 * this.n()), 4);

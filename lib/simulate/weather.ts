@@ -119,8 +119,24 @@ export const DEFAULT_CLIMATE: SiteClimate = {
   flowPeakDay: 130,
 };
 
+/** What a unit model asks of its site's weather. */
+export interface WeatherSource {
+  readonly timeZone: string;
+  readonly climate: SiteClimate;
+  /** Air temperature, °C. */
+  airC(tMs: number): number;
+  /** Air density, kg/m³. */
+  airDensityKgM3(tMs: number): number;
+  /** Mean wind at hub height, m/s, before turbulence. */
+  windMeanMs(tMs: number): number;
+  /** Water temperature, °C. */
+  waterC(tMs: number): number;
+  /** Water available at the intake over the design flow. */
+  availableFlowFraction(tMs: number): number;
+}
+
 /** Weather of one site, a pure function of time for a given seed. */
-export class SiteWeather {
+export class SiteWeather implements WeatherSource {
   private readonly airNoise: (tMs: number) => number;
   private readonly windNoise: (tMs: number) => number;
   private readonly pressureNoise: (tMs: number) => number;

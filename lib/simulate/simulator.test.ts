@@ -1,0 +1,126 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import mqtt, { type MqttClient } from 'mqtt';
+import { startEmbeddedBroker, type EmbeddedBroker } from '../broker/embedded';
+import { fleetSchema } from '../contract/nameplate';
+import { parseTelemetrySample } from '../contract/telemetry';
+import { createLogger } from '../log/logger';
+import { freePort } from '../server/ports';
+import { demoFleet } from './demo-fleet';
+import { startSimulator } from './simulator';
+
+const log = createLogger('test', 'silent');
+const fleet = fleetSchema.parse(demoFleet);
+const pick = (...ids: string[]) => {
+  const units = fleet.units.filter((u) => ids.includes(u.id));
+  return { sites: fleet.sites.filter((s) => units.some((u) => u.siteId === s.id)), units };
+};
+
+interface Received {
+  topic: string;
+  text: string;
+  retain: boolean;
+}
+
+async function subscriber(url: string, clientId: string, into: Received[]): Promise<MqttClient> {
+  const client = await mqtt.connectAsync(url, { clientId, protocolVersion: 4, reconnectPeriod: 0 });
+  client.on('message', (topic, payload, packet) => into.push({ topic, text: payload.toString(), retain: packet.retain }));
+  await client.subscribeAsync('millrace/#', { qos: 1 });
+  return client;
+}
+
+async function waitFor(what: string, ok: () => boolean, timeoutMs = 10_000): Promise<void> {
+  const until = Date.now() + timeoutMs;
+  while (!ok()) {
+    if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 20));
+  }
+}
+
+describe('startSimulator against the embedded broker', () => {
+  let broker: EmbeddedBroker;
+  const clients: MqttClient[] = [];
+
+  beforeAll(async () => {
+    broker = await startEmbeddedBroker({ port: await freePort() });
+  });
+  afterAll(async () => {
+    await Promise.all(clients.map((c) => c.endAsync(true)));
+    await broker.close();
+  });
+
+  it('publishes presence and valid telemetry per unit, and a dropped unit leaves a retained offline will', async () => {
+    const received: Received[] = [];
+    clients.push(await subscriber(broker.url, 'test-watch', received));
+    const sim = await startSimulator({
+      brokerUrl: broker.url,
+      fleet: pick('rv-01', 'ks-03', 'mg-02'),
+      rateHz: 10,
+      samplesPerMessage: 2,
+      log,
+      seed: 5,
+      offlineAfterS: 1,
+      offlineForS: null,
+      clientIdPrefix: 'test-sim',
+    });
+    const presence = (unit: string) =>
+      received.filter((r) => r.topic.endsWith(`/${unit}/presence`)).map((r) => r.text);
+    const telemetry = (unit: string) => received.filter((r) => r.topic.endsWith(`/${unit}/telemetry`));
+    try {
+      await waitFor('presence online', () => ['rv-01', 'ks-03', 'mg-02'].every((u) => presence(u).includes('online')));
+      expect(received.some((r) => r.topic === 'millrace/ravenscarp-moor/rv-01/presence')).toBe(true);
+      await waitFor('telemetry of every unit', () => ['rv-01', 'ks-03', 'mg-02'].every((u) => telemetry(u).length >= 2));
+      for (const message of received.filter((r) => r.topic.endsWith('/telemetry'))) {
+        const samples = JSON.parse(message.text) as unknown[];
+        expect(Array.isArray(samples)).toBe(true);
+        expect(samples.length).toBe(2);
+        for (const s of samples) expect(parseTelemetrySample(s).ok).toBe(true);
+      }
+      // ks-03 drops off uncleanly one second in; the broker publishes its will.
+      await waitFor('last will of ks-03', () => presence('ks-03').includes('offline'));
+      expect(sim.state().unitsOffline).toEqual(['ks-03']);
+      const countAtDrop = telemetry('ks-03').length;
+      await new Promise((r) => setTimeout(r, 500));
+      expect(telemetry('ks-03').length).toBeLessThanOrEqual(countAtDrop + 1);
+      expect(telemetry('rv-01').length).toBeGreaterThan(2);
+
+      // A newcomer gets the will as the retained presence.
+      const late: Received[] = [];
+      clients.push(await subscriber(broker.url, 'test-late', late));
+      await waitFor('retained presence', () => late.some((r) => r.topic.endsWith('/ks-03/presence')));
+      const retained = late.find((r) => r.topic.endsWith('/ks-03/presence'))!;
+      expect(retained).toEqual({ topic: 'millrace/kestrel-saddle/ks-03/presence', text: 'offline', retain: true });
+      expect(late.find((r) => r.topic.endsWith('/rv-01/presence'))).toMatchObject({ text: 'online', retain: true });
+    } finally {
+      await sim.stop();
+    }
+    const state = sim.state();
+    expect(state.status).toBe('stopped');
+    expect(state.units).toBe(3);
+    expect(state.messagesSent).toBeGreaterThan(5);
+    expect(state.samplesDropped).toBe(0);
+    // Everything acknowledged reached the subscriber.
+    await waitFor('last messages', () => presence('rv-01').at(-1) === 'offline');
+    const delivered = received
+      .filter((r) => r.topic.endsWith('/telemetry'))
+      .reduce((n, r) => n + (JSON.parse(r.text) as unknown[]).length, 0);
+    expect(delivered).toBeGreaterThanOrEqual(state.samplesSent);
+    expect(presence('mg-02').at(-1)).toBe('offline');
+  });
+
+  it('rejects with the broker URL when nothing listens there', async () => {
+    const url = `mqtt://127.0.0.1:${await freePort()}`;
+    await expect(startSimulator({ brokerUrl: url, fleet: pick('rv-01'), log })).rejects.toThrow(
+      new RegExp(`${url.replace(/[.]/g, '\\.')}.*connection refused.*npm start.*MQTT_URL`),
+    );
+  });
+
+  it('names a bad rate', async () => {
+    await expect(startSimulator({ brokerUrl: broker.url, rateHz: 0, log })).rejects.toThrow(/rateHz.*got 0/);
+    await expect(startSimulator({ brokerUrl: broker.url, samplesPerMessage: 2.5, log })).rejects.toThrow(/samplesPerMessage.*2\.5/);
+  });
+
+  it('names what is wrong with a bad fleet', async () => {
+    const bad = { sites: [], units: [{ ...demoFleet.units[0], poles: 7 }] };
+    await expect(startSimulator({ brokerUrl: broker.url, fleet: bad, log })).rejects.toThrow(/units\[0\]\.poles: must be an even number, got 7/);
+  });
+});
