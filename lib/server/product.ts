@@ -90,9 +90,8 @@ async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: stri
   if (!hasHistory) {
     // History goes through the broker like everything else; the page works meanwhile.
     backfill({ brokerUrl, fleet: demoFleet, days: 3, log: simLog, ...credentials })
-      .then((result) => {
+      .then(() => {
         phase = 'live';
-        simLog.info('demo history written', { ...result });
       })
       .catch((error: unknown) => {
         phase = 'live (history failed)';

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser } from 'playwright-core';
+import { chromium, type BrowserContext } from 'playwright-core';
 import { mkdtempSync, mkdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -11,12 +11,15 @@ import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
 // devices through the broker and the ingester into the database, and the
 // fleet page shows it.
 let product: RunningProduct;
-let browser: Browser;
+let browser: BrowserContext;
 
 beforeAll(async () => {
   product = await startProductProcess({ DEMO: 'on' });
-  browser = await chromium.launch({
+  // A fresh profile folder for every run, as our machines need.
+  browser = await chromium.launchPersistentContext(mkdtempSync(join(tmpdir(), 'millrace-chromium-')), {
     executablePath: '/usr/bin/chromium',
+    headless: true,
+    viewport: { width: 1280, height: 900 },
     args: [
       '--headless',
       '--no-sandbox',
@@ -26,7 +29,6 @@ beforeAll(async () => {
       '--disable-component-update',
       '--disable-sync',
       '--no-first-run',
-      `--user-data-dir=${mkdtempSync(join(tmpdir(), 'millrace-chromium-'))}`,
     ],
   });
 }, 300_000);
@@ -47,7 +49,8 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
       async () => {
         const res = await fetch(`${product.url}/api/health`);
         const body = (await res.json()) as Health;
-        return body.components.ingester?.connected === true ? body : undefined;
+        const broker = body.components.ingester?.broker as { connected?: number } | undefined;
+        return (broker?.connected ?? 0) >= 1 ? body : undefined;
       },
       30_000,
       'the ingester to connect',
@@ -62,7 +65,8 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
     const committed = await eventually(
       async () => {
         const body = (await (await fetch(`${product.url}/api/health`)).json()) as Health;
-        const rows = Number(body.components.ingester?.rowsCommitted ?? 0);
+        const counters = body.components.ingester?.counters as { rowsCommitted?: number } | undefined;
+        const rows = counters?.rowsCommitted ?? 0;
         return rows > 50 ? rows : undefined;
       },
       90_000,
@@ -72,7 +76,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
   });
 
   it('shows the fleet list in a browser', async () => {
-    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+    const page = await browser.newPage();
     await eventually(
       async () => {
         await page.goto(product.url, { waitUntil: 'load' });
