@@ -6,7 +6,7 @@ import { REFERENCE_AIR_DENSITY_KG_M3 } from '../energy/air-density';
 import { lineVoltageUnbalancePct } from '../physics/unbalance';
 import { DEMO_FAULT_LEAD_DAYS, demoClimates, demoFleet, demoUnitScenarios } from './demo-fleet';
 import { buildFleetModels } from './fleet-models';
-import { HYDRO_LOAD_POWER_FACTOR, WIND_LOAD_POWER_FACTOR, ratedWindMs, terminalReadings } from './machine';
+import { LOAD_POWER_FACTOR, ratedWindMs, terminalReadings } from './machine';
 
 const fleet = fleetSchema.parse(demoFleet);
 
@@ -45,7 +45,7 @@ describe('demo fleet', () => {
 
   it('gives each unit its rated line voltage (200–690 V) at rated speed and load, with margin to deliver more', () => {
     for (const u of fleet.units) {
-      const pf = u.kind === 'wind' ? WIND_LOAD_POWER_FACTOR : HYDRO_LOAD_POWER_FACTOR;
+      const pf = LOAD_POWER_FACTOR[demoUnitScenarios[u.id]!.load];
       // A hot machine at rated: winding and magnets at 80 °C.
       const at = (kw: number) => terminalReadings(u, { rpm: u.ratedRpm, kw, powerFactor: pf, magnetC: 80, windingC: 80 });
       const rated = at(u.ratedKw);

@@ -8,6 +8,11 @@
  * their rotor diameters, and rated speed puts the tip-speed ratio near 7 at
  * rated wind; hydro ratings match ρ·g·Q·H·η at design flow and head.
  *
+ * Loads (lib/simulate/machine.ts): every unit feeds a rectifier and
+ * inverter (power factor 0.95, free speed) except tb-01, an older set on
+ * an electronic load controller (power factor 1, fixed speed; with no speed
+ * spread to fit Ke over, it diagnoses as insufficient-data).
+ *
  * Faults (lib/simulate/faults.ts), counted in days from the fault epoch,
  * which by default is seven days before the run starts:
  * - rv-02: magnets losing flux, Ke −1 % a day from day 0 (configurable);
@@ -97,19 +102,19 @@ export const demoFleet: Fleet = {
     {
       id: 'mg-01', siteId: 'mossgrove-weir', name: 'Mossgrove 1', kind: 'hydro',
       ratedKw: 15, ratedRpm: 750, maxRpm: 975, poles: 12,
-      keVPerKrpm: 622.1, keRefC: 20, magnet: 'ndfeb', phaseOhm: 0.345, phaseMh: 6.79,
+      keVPerKrpm: 669, keRefC: 20, magnet: 'ndfeb', phaseOhm: 0.328, phaseMh: 6.45,
       designHeadM: 42, designFlowM3s: 0.0506, efficiency: 0.72,
     },
     {
       id: 'mg-02', siteId: 'mossgrove-weir', name: 'Mossgrove 2', kind: 'hydro',
       ratedKw: 15, ratedRpm: 750, maxRpm: 975, poles: 12,
-      keVPerKrpm: 622.1, keRefC: 20, magnet: 'ndfeb', phaseOhm: 0.345, phaseMh: 6.79,
+      keVPerKrpm: 669, keRefC: 20, magnet: 'ndfeb', phaseOhm: 0.328, phaseMh: 6.45,
       designHeadM: 42, designFlowM3s: 0.0506, efficiency: 0.72,
     },
     {
       id: 'mg-03', siteId: 'mossgrove-weir', name: 'Mossgrove 3', kind: 'hydro',
       ratedKw: 40, ratedRpm: 500, maxRpm: 650, poles: 16,
-      keVPerKrpm: 1595.3, keRefC: 20, magnet: 'ndfeb', phaseOhm: 0.289, phaseMh: 8.52,
+      keVPerKrpm: 1718.4, keRefC: 20, magnet: 'ndfeb', phaseOhm: 0.274, phaseMh: 8.1,
       designHeadM: 65, designFlowM3s: 0.0805, efficiency: 0.78,
     },
     // Tumbleford Run: a high valley with a low-head and a medium-head set, and one turbine on the shoulder.
@@ -122,7 +127,7 @@ export const demoFleet: Fleet = {
     {
       id: 'tb-02', siteId: 'tumbleford-run', name: 'Tumbleford medium head', kind: 'hydro',
       ratedKw: 25, ratedRpm: 600, maxRpm: 780, poles: 18,
-      keVPerKrpm: 979.6, keRefC: 20, magnet: 'ferrite', magnetTempCoeffPctPerC: -0.19, phaseOhm: 0.261, phaseMh: 4.89,
+      keVPerKrpm: 1054.3, keRefC: 20, magnet: 'ferrite', magnetTempCoeffPctPerC: -0.19, phaseOhm: 0.248, phaseMh: 4.64,
       designHeadM: 28, designFlowM3s: 0.123, efficiency: 0.74,
     },
     {
@@ -154,34 +159,35 @@ const withAir = { hz: true, threePhase: true, airDensity: true } as const;
 
 /** Loggers, exposure and faults of each demo unit. */
 export const demoUnitScenarios: Readonly<Record<string, UnitScenario>> = {
-  'rv-01': { tsFormat: 'iso-local', channels: full, exposure: 1.02, faults: [] },
+  'rv-01': { tsFormat: 'iso-local', load: 'rectifier', channels: full, exposure: 1.02, faults: [] },
   'rv-02': {
-    tsFormat: 'iso-local', channels: full, exposure: 1,
+    tsFormat: 'iso-local', load: 'rectifier', channels: full, exposure: 1,
     faults: [{ kind: 'demagnetisation', onsetDays: 0, pctPerDay: 1, floorFraction: 0.8 }],
   },
-  'rv-03': { tsFormat: 'iso-local', channels: full, exposure: 0.96, faults: [] },
+  'rv-03': { tsFormat: 'iso-local', load: 'rectifier', channels: full, exposure: 0.96, faults: [] },
   'rv-04': {
-    tsFormat: 'iso-utc', channels: withAir, exposure: 1.05,
+    tsFormat: 'iso-utc', load: 'rectifier', channels: withAir, exposure: 1.05,
     faults: [{ kind: 'overspeed', everyS: 1800, durationS: 30, gustOverRatedWind: 1.45 }],
   },
-  'ks-01': { tsFormat: 'epoch-ms', channels: withAir, exposure: 1, faults: [] },
+  'ks-01': { tsFormat: 'epoch-ms', load: 'rectifier', channels: withAir, exposure: 1, faults: [] },
   'ks-02': {
-    tsFormat: 'epoch-ms', channels: full, exposure: 0.98,
+    tsFormat: 'epoch-ms', load: 'rectifier', channels: full, exposure: 0.98,
     faults: [{ kind: 'speed-sensor-low', onsetDays: 5, readsLowPct: 5 }],
   },
   'ks-03': {
-    tsFormat: 'epoch-ms', channels: full, exposure: 1.04,
+    tsFormat: 'epoch-ms', load: 'rectifier', channels: full, exposure: 1.04,
     faults: [{ kind: 'offline', afterS: 240, forS: 1200, gapStartDays: 5.5, gapHours: 4 }],
   },
   // A basic charge controller: one line voltage, one current, no frequency.
-  'ks-04': { tsFormat: 'epoch-ms', channels: { hz: false, threePhase: false, airDensity: false }, exposure: 0.93, faults: [] },
-  'mg-01': { tsFormat: 'iso-utc', channels: full, exposure: 1, faults: [] },
+  'ks-04': { tsFormat: 'epoch-ms', load: 'rectifier', channels: { hz: false, threePhase: false, airDensity: false }, exposure: 0.93, faults: [] },
+  'mg-01': { tsFormat: 'iso-utc', load: 'rectifier', channels: full, exposure: 1, faults: [] },
   'mg-02': {
-    tsFormat: 'iso-utc', channels: full, exposure: 1,
+    tsFormat: 'iso-utc', load: 'rectifier', channels: full, exposure: 1,
     faults: [{ kind: 'shorted-turn', onsetDays: 4.5, phase: 'b', emfLossPct: 8, developHours: 6, extraHeatingK: 6 }],
   },
-  'mg-03': { tsFormat: 'iso-local', channels: full, exposure: 1.1, faults: [] },
-  'tb-01': { tsFormat: 'iso-local', channels: full, exposure: 0.9, faults: [] },
-  'tb-02': { tsFormat: 'epoch-ms', channels: full, exposure: 0.95, faults: [] },
-  'tb-03': { tsFormat: 'iso-utc', channels: withAir, exposure: 1, faults: [] },
+  'mg-03': { tsFormat: 'iso-local', load: 'rectifier', channels: full, exposure: 1.1, faults: [] },
+  // An older set on an electronic load controller: ballast heaters, fixed speed.
+  'tb-01': { tsFormat: 'iso-local', load: 'resistive', channels: full, exposure: 0.9, faults: [] },
+  'tb-02': { tsFormat: 'epoch-ms', load: 'rectifier', channels: full, exposure: 0.95, faults: [] },
+  'tb-03': { tsFormat: 'iso-utc', load: 'rectifier', channels: withAir, exposure: 1, faults: [] },
 };

@@ -14,11 +14,12 @@ import { demoFleet, demoUnitScenarios } from './demo-fleet';
 import type { FaultPlan } from './faults';
 import {
   DEFAULT_UNIT_SCENARIO,
-  HYDRO_LOAD_POWER_FACTOR,
   RATED_RISE_K,
   THERMAL_TAU_S,
   UnitModel,
-  WIND_LOAD_POWER_FACTOR,
+  LOAD_POWER_FACTOR,
+  SCAN_DEPTH,
+  SCAN_EVERY_S,
   isoWithOffset,
   terminalReadings,
   type UnitScenario,
@@ -124,10 +125,10 @@ describe('UnitModel electrical physics', () => {
   });
 
   it('delivers kW = √3·V_LL·I·cos φ with the documented load power factors (three-phase power, any power-systems textbook)', () => {
-    for (const id of ['rv-01', 'tb-02']) {
-      const np = unit(id);
-      const pf = np.kind === 'wind' ? WIND_LOAD_POWER_FACTOR : HYDRO_LOAD_POWER_FACTOR;
-      const results = run(model(id, stillWeather({ windMs: () => 9 })), T0, 5);
+    for (const [id, load] of [['rv-01', 'rectifier'], ['tb-02', 'rectifier'], ['tb-01', 'resistive']] as const) {
+      const pf = LOAD_POWER_FACTOR[load];
+      expect(pf).toBe(load === 'rectifier' ? 0.95 : 1);
+      const results = run(model(id, stillWeather({ windMs: () => 9 }), { scenario: { load } }), T0, 5);
       for (const { sample } of results.slice(-20)) {
         const vLl = (sample.vab! + sample.vbc! + sample.vca!) / 3;
         const i = (sample.ia! + sample.ib! + sample.ic!) / 3;
@@ -149,13 +150,13 @@ describe('UnitModel electrical physics', () => {
   });
 
   it("recovers the simulated EMF from a loaded sample with E = V + I·(R + jX) (contract section 5; Chapman's per-phase circuit, from memory)", () => {
-    for (const id of ['rv-04', 'ks-03', 'mg-03', 'tb-01']) {
+    for (const [id, load] of [['rv-04', 'rectifier'], ['ks-03', 'rectifier'], ['mg-03', 'rectifier'], ['tb-01', 'resistive']] as const) {
       const np = unit(id);
-      const results = run(model(id, stillWeather({ windMs: () => 10 })), T0, 10);
+      const results = run(model(id, stillWeather({ windMs: () => 10 }), { scenario: { load } }), T0, 10);
       const { sample, truth } = results.at(-1)!;
       expect(truth.terminals.ia).toBeGreaterThan(0.3 * model(id, stillWeather()).ratedCurrentA);
-      // With the load's own power factor (0.95 wind, 1 hydro) the recovery is exact to the logger's digits.
-      const pf = np.kind === 'wind' ? WIND_LOAD_POWER_FACTOR : HYDRO_LOAD_POWER_FACTOR;
+      // With the load's own power factor (0.95 rectifier, 1 resistive) the recovery is exact to the logger's digits.
+      const pf = LOAD_POWER_FACTOR[load];
       expect(Math.abs(recoveredEmfLl(np, sample, pf) / truth.emfLlV - 1)).toBeLessThan(0.0002);
       // With cos φ estimated from the readings (as the diagnosis must), rounding near unity moves sin φ: within 0.2 %.
       expect(Math.abs(recoveredEmfLl(np, sample) / truth.emfLlV - 1)).toBeLessThan(0.002);
@@ -300,16 +301,31 @@ describe('UnitModel wind and water', () => {
     expect(ti).toBeLessThan(0.14);
   });
 
-  it('makes ρ·g·Q·H·η at most, capped at rated, at governed speed (hydro)', () => {
+  it('makes ρ·g·Q·H·η at most, capped at rated, at governed speed (hydro on a load controller)', () => {
     const np = unit('mg-03');
     for (const flow of [0.5, 0.9, 1.4]) {
-      const { sample, truth } = run(model('mg-03', stillWeather({ flow })), T0, 3).at(-1)!;
+      const { sample, truth } = run(model('mg-03', stillWeather({ flow }), { scenario: { load: 'resistive' } }), T0, 3).at(-1)!;
       const ideal = hydroPowerKw(sample.flowM3s!, sample.headM!, np.efficiency!);
       expect(truth.terminals.kw).toBeLessThanOrEqual(Math.min(np.ratedKw, ideal) * 1.005);
       expect(truth.terminals.kw).toBeGreaterThan(Math.min(np.ratedKw, ideal) * 0.9);
       expect(sample.flowM3s!).toBeLessThanOrEqual(np.designFlowM3s! * 1.04);
       expect(Math.abs(sample.rpm / np.ratedRpm - 1)).toBeLessThan(0.02);
       expect(Math.abs(sample.headM! / np.designHeadM! - 1)).toBeLessThan(0.03);
+    }
+  });
+
+  it('sweeps a hydro inverter unit down by the scan depth and back, over 10 % of rated speed within an hour', () => {
+    const np = unit('mg-01');
+    const results = run(model('mg-01', stillWeather({ flow: 0.9 })), T0, SCAN_EVERY_S / 60 + 5, 2);
+    const rpms = results.map((r) => r.truth.rpm);
+    const span = (Math.max(...rpms) - Math.min(...rpms)) / np.ratedRpm;
+    expect(span).toBeGreaterThan(0.1);
+    expect(span).toBeLessThan(SCAN_DEPTH + 0.02);
+    // Most of the time at the runner's best speed.
+    const atRated = rpms.filter((r) => Math.abs(r / np.ratedRpm - 1) < 0.015).length / rpms.length;
+    expect(atRated).toBeGreaterThan(0.85);
+    for (const { sample, truth } of results) {
+      expect(truth.terminals.kw).toBeLessThanOrEqual(hydroPowerKw(sample.flowM3s!, sample.headM!, np.efficiency!) * 1.005);
     }
   });
 });

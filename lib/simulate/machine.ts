@@ -5,12 +5,17 @@
  *
  * Electrical model: lib/physics/generator-model (E = V + I·(R + jX) per
  * phase, E from Ke at magnet temperature, R copper at winding temperature,
- * X = 2π·f·L, f = poles·rpm/120). The load is chosen per kind:
- * - wind units feed a rectifier and inverter; the generator sees a
- *   rectifier-like load of displacement power factor 0.95 lagging;
- * - hydro units feed a resistive load through an electronic load
- *   controller (ballast heaters take what the consumers do not), power
- *   factor 1.
+ * X = 2π·f·L, f = poles·rpm/120). The load is chosen per unit
+ * (`UnitScenario.load`):
+ * - `rectifier`: a rectifier and grid-tie inverter; the generator sees a
+ *   rectifier-like load of displacement power factor 0.95 lagging and the
+ *   speed is free: wind units hold a tip-speed ratio up to rated speed,
+ *   hydro units sit at the runner's best speed and the inverter's maximum
+ *   power point tracker sweeps it down and back every 20 minutes;
+ * - `resistive`: a resistive load under an electronic load controller
+ *   (ballast heaters take what the consumers do not), power factor 1, the
+ *   speed governed constant (such a unit never shows the speed spread the
+ *   Ke fit needs, and diagnoses as insufficient-data).
  * Thermal model: one thermal mass, the stator winding, heated by I² and
  * relaxing to its coolant with a time constant; the magnets sit at the
  * stator temperature.
@@ -29,10 +34,21 @@ import { faultEffects, validateFaultPlan, type FaultEffects, type FaultPlan, typ
 import { Ar1, gaussian, mulberry32, seedFor } from './random';
 import { zoneOffsetMinutes, type WeatherSource } from './weather';
 
-/** Displacement power factor of the rectifier-like load of a wind unit (common practice, no published source). */
-export const WIND_LOAD_POWER_FACTOR = 0.95;
-/** Power factor of the resistive load of a hydro unit under an electronic load controller. */
-export const HYDRO_LOAD_POWER_FACTOR = 1;
+/** Displacement power factor of a rectifier-like load (common practice, no published source). */
+export const RECTIFIER_POWER_FACTOR = 0.95;
+/** Power factor of a resistive load under an electronic load controller. */
+export const RESISTIVE_POWER_FACTOR = 1;
+/** Load power factor of each load kind. */
+export const LOAD_POWER_FACTOR = { rectifier: RECTIFIER_POWER_FACTOR, resistive: RESISTIVE_POWER_FACTOR } as const;
+/** Maximum power point scans of hydro inverters: every SCAN_EVERY_S, SCAN_S long, down to 1 − SCAN_DEPTH of rated speed. */
+export const SCAN_EVERY_S = 20 * 60;
+export const SCAN_S = 120;
+export const SCAN_DEPTH = 0.14;
+/**
+ * Loss of turbine efficiency off its best runner speed: η·(1 − k·(n/n₀ − 1)²),
+ * the parabola impulse turbines follow near their best point (common practice, no published source).
+ */
+const RUNNER_SPEED_LOSS_K = 1.5;
 /** Winding temperature rise over coolant at rated current, K (class F insulation run at class B rise, common practice). */
 export const RATED_RISE_K = { wind: 60, hydro: 55 } as const;
 /** Thermal time constant of the stator winding, s (small machines: tens of minutes, common practice). */
@@ -61,9 +77,13 @@ export interface UnitChannels {
   readonly airDensity: boolean;
 }
 
+/** What the generator feeds (see the module comment). */
+export type LoadKind = 'rectifier' | 'resistive';
+
 /** What the scenario says about one unit beyond its nameplate. */
 export interface UnitScenario {
   readonly tsFormat: TimestampFormat;
+  readonly load: LoadKind;
   readonly channels: UnitChannels;
   /** Resource at this unit over the site's (wind: speed-up of its spot; hydro: share of the intake). */
   readonly exposure: number;
@@ -73,6 +93,7 @@ export interface UnitScenario {
 /** Scenario of a unit the demo does not describe: healthy, every channel, UTC ISO times. */
 export const DEFAULT_UNIT_SCENARIO: UnitScenario = {
   tsFormat: 'iso-utc',
+  load: 'rectifier',
   channels: { hz: true, threePhase: true, airDensity: false },
   exposure: 1,
   faults: [],
@@ -247,6 +268,7 @@ export class UnitModel {
   private readonly noise: number;
   private readonly rotorTauS: number;
   private readonly speedTauS: number;
+  private readonly scanPhaseMs: number;
   private lastMs: number | undefined;
   private statorC = 20;
   private rotorWindMs = 0;
@@ -272,7 +294,7 @@ export class UnitModel {
       phaseOhm: np.phaseOhm,
       phaseMh: np.phaseMh,
     };
-    this.powerFactor = np.kind === 'wind' ? WIND_LOAD_POWER_FACTOR : HYDRO_LOAD_POWER_FACTOR;
+    this.powerFactor = LOAD_POWER_FACTOR[scenario.load];
     const rated = terminalReadings(this.spec, {
       rpm: np.ratedRpm,
       kw: np.ratedKw,
@@ -283,6 +305,8 @@ export class UnitModel {
     this.ratedCurrentA = rated?.ia ?? (np.ratedKw * 1000) / (SQRT3 * ((np.keVPerKrpm * np.ratedRpm) / 1000) * this.powerFactor);
     const u = (what: string) => mulberry32(seedFor(options.seed, `${np.siteId}/${np.id}/${what}`));
     this.normal = gaussian(u('sensors'));
+    // Units scan at their own moments, not in step.
+    this.scanPhaseMs = Math.floor(u('scan')() * SCAN_EVERY_S) * 1000;
     this.turbulence = new Ar1(TURBULENCE_TAU_S, 1, u('turbulence'));
     this.governor = new Ar1(5, 1, u('governor'));
     this.converter = new Ar1(30, 1, u('converter'));
@@ -386,13 +410,15 @@ export class UnitModel {
       flowM3s = q * designQ;
       // Penstock friction grows with the square of the flow; the forebay level wanders a little.
       headM = np.designHeadM! * (1.03 - 0.03 * q * q) * (1 + 0.002 * this.levelRipple.step(dtS));
-      // Part-flow efficiency falls off (turbine hill chart, common practice).
-      const eta = np.efficiency! * (1 - 0.25 * (1 - Math.min(1, q)) ** 2);
+      // Below rated speed only while the inverter scans for its maximum power point.
+      const speedFactor = this.scenario.load === 'rectifier' ? 1 - SCAN_DEPTH * this.scanDepthAt(tMs) : 1;
+      // Part-flow efficiency falls off (turbine hill chart), and off the best runner speed too (common practice).
+      const eta = np.efficiency! * (1 - 0.25 * (1 - Math.min(1, q)) ** 2) * (1 - RUNNER_SPEED_LOSS_K * (speedFactor - 1) ** 2);
       kwAsked = Math.min(np.ratedKw, hydroPowerKw(flowM3s, headM, eta));
       ambientC = this.weather.waterC(tMs);
       // The powerhouse air the generator breathes runs a few kelvin above the water.
       coolantC = ambientC + 4;
-      const targetRpm = this.hydroRunning ? np.ratedRpm * (1 + 0.003 * this.governor.step(dtS)) : 0;
+      const targetRpm = this.hydroRunning ? np.ratedRpm * speedFactor * (1 + 0.003 * this.governor.step(dtS)) : 0;
       this.rpm += (targetRpm - this.rpm) * lag(this.speedTauS);
       if (!this.hydroRunning) {
         mode = 'stopped';
@@ -435,6 +461,14 @@ export class UnitModel {
     const steady = this.steadyStatorC(coolantC, terminals.ia, effects);
     this.statorC = steady + (this.statorC - steady) * Math.exp(-dtS / THERMAL_TAU_S[np.kind]);
     return { sample, truth };
+  }
+
+  /** How far into its sweep a scan is at `tMs`: 0 outside scans, rising to 1 mid-scan and back. */
+  private scanDepthAt(tMs: number): number {
+    const everyMs = SCAN_EVERY_S * 1000;
+    const intoMs = (((tMs - this.scanPhaseMs) % everyMs) + everyMs) % everyMs;
+    const scanMs = SCAN_S * 1000;
+    return intoMs >= scanMs ? 0 : 1 - Math.abs((2 * intoMs) / scanMs - 1);
   }
 
   private steadyStatorC(coolantC: number, currentA: number, effects: FaultEffects): number {

@@ -94,7 +94,7 @@ describe('startSimulator against the embedded broker', () => {
       await sim.stop();
     }
     const state = sim.state();
-    expect(state.status).toBe('stopped');
+    expect(state.lifecycle).toBe('stopped');
     expect(state.units).toBe(3);
     expect(state.messagesSent).toBeGreaterThan(5);
     expect(state.samplesDropped).toBe(0);

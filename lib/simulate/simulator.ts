@@ -39,7 +39,8 @@ export interface SimulatorOptions extends FleetModelOptions {
 
 /** What the simulator reports about itself. */
 export interface SimulatorState {
-  status: 'running' | 'stopping' | 'stopped';
+  /** Named so as not to clash with a health report's own `status`. */
+  lifecycle: 'running' | 'stopping' | 'stopped';
   startedAt: string;
   broker: string;
   seed: number;
@@ -95,7 +96,7 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
   const prefix = options.clientIdPrefix ?? 'millrace-sim';
   const periodMs = 1000 / rateHz;
   const counters = { messagesSent: 0, samplesSent: 0, samplesDropped: 0, messagesFailed: 0, lastPublishMs: 0 };
-  let status: SimulatorState['status'] = 'running';
+  let lifecycle: SimulatorState['lifecycle'] = 'running';
   const timeouts = new Set<NodeJS.Timeout>();
   const later = (ms: number, fn: () => void) => {
     const t = setTimeout(() => {
@@ -154,7 +155,7 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
       },
       (error: unknown) => {
         counters.messagesFailed++;
-        if (status === 'running' && u.device === device) log.warn('publish failed', { unit: u.nameplate.id, samples: samples.length, error });
+        if (lifecycle === 'running' && u.device === device) log.warn('publish failed', { unit: u.nameplate.id, samples: samples.length, error });
       },
     );
   };
@@ -171,11 +172,11 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
   };
 
   const comeBack = (u: LiveUnit) => {
-    if (status !== 'running') return;
+    if (lifecycle !== 'running') return;
     const device = newDevice(u);
     device.connect().then(
       () => {
-        if (status !== 'running') return void device.close(0);
+        if (lifecycle !== 'running') return void device.close(0);
         u.device = device;
         log.info('unit back online', { unit: u.nameplate.id });
       },
@@ -208,7 +209,7 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
 
   return {
     state: () => ({
-      status,
+      lifecycle,
       startedAt: new Date(startedMs).toISOString(),
       broker: redactUrl(brokerUrl),
       seed,
@@ -225,8 +226,8 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
       lastPublishAt: counters.lastPublishMs === 0 ? null : new Date(counters.lastPublishMs).toISOString(),
     }),
     stop: async () => {
-      if (status !== 'running') return;
-      status = 'stopping';
+      if (lifecycle !== 'running') return;
+      lifecycle = 'stopping';
       for (const t of timeouts) clearTimeout(t);
       timeouts.clear();
       for (const u of units) {
@@ -235,7 +236,7 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
       }
       await Promise.all(units.map((u) => u.device?.close()));
       for (const u of units) u.device = undefined;
-      status = 'stopped';
+      lifecycle = 'stopped';
       log.info('demo fleet stopped', { messagesSent: counters.messagesSent, samplesSent: counters.samplesSent });
     },
   };
