@@ -80,7 +80,7 @@ describe('startSimulator against the embedded broker', () => {
       expect(sim.state().unitsOffline).toEqual(['ks-03']);
       const countAtDrop = telemetry('ks-03').length;
       await new Promise((r) => setTimeout(r, 500));
-      expect(telemetry('ks-03').length).toBeLessThanOrEqual(countAtDrop + 1);
+      expect(telemetry('ks-03').length).toBeLessThanOrEqual(countAtDrop + 3);
       expect(telemetry('rv-01').length).toBeGreaterThan(2);
 
       // A newcomer gets the will as the retained presence.
