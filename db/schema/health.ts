@@ -51,7 +51,7 @@ export const unitHealth = pgTable('unit_health', {
 export type UnitHealthRow = typeof unitHealth.$inferSelect;
 export type NewUnitHealthRow = typeof unitHealth.$inferInsert;
 
-/** Every diagnosis run, kept for the trend. */
+/** Diagnosis results kept for the trend: at most one an hour per unit, and every change of verdict. */
 export const unitHealthHistory = pgTable(
   'unit_health_history',
   {
