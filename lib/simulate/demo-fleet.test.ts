@@ -6,7 +6,8 @@ import { REFERENCE_AIR_DENSITY_KG_M3 } from '../energy/air-density';
 import { lineVoltageUnbalancePct } from '../physics/unbalance';
 import { DEMO_FAULT_LEAD_DAYS, demoClimates, demoFleet, demoUnitScenarios } from './demo-fleet';
 import { buildFleetModels } from './fleet-models';
-import { LOAD_POWER_FACTOR, ratedWindMs, terminalReadings } from './machine';
+import { LOAD_POWER_FACTOR, ratedWindMs } from './machine';
+import { generatorTerminals } from '../physics/generator-model';
 
 const fleet = fleetSchema.parse(demoFleet);
 
@@ -47,7 +48,7 @@ describe('demo fleet', () => {
     for (const u of fleet.units) {
       const pf = LOAD_POWER_FACTOR[demoUnitScenarios[u.id]!.load];
       // A hot machine at rated: winding and magnets at 80 °C.
-      const at = (kw: number) => terminalReadings(u, { rpm: u.ratedRpm, kw, powerFactor: pf, magnetC: 80, windingC: 80 });
+      const at = (kw: number) => generatorTerminals(u, { rpm: u.ratedRpm, kw, powerFactor: pf, magnetC: 80, windingC: 80 });
       const rated = at(u.ratedKw);
       expect(rated, u.id).toBeDefined();
       expect(rated!.vab, u.id).toBeGreaterThan(200);

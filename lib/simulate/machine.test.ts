@@ -1,8 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import fc from 'fast-check';
 import { fleetSchema, type Nameplate } from '../contract/nameplate';
 import { SQRT3, recoverPhaseEmf } from '../physics/emf';
-import { generatorTerminals } from '../physics/generator-model';
 import { keAtMagnetC, remanenceCoeffPctPerC } from '../physics/magnet-temperature';
 import { reactanceOhm } from '../physics/reactance';
 import { lineVoltageUnbalancePct } from '../physics/unbalance';
@@ -21,7 +19,6 @@ import {
   SCAN_DEPTH,
   SCAN_EVERY_S,
   isoWithOffset,
-  terminalReadings,
   type UnitScenario,
 } from './machine';
 import type { SiteClimate, WeatherSource } from './weather';
@@ -76,33 +73,6 @@ function recoveredEmfLl(np: Nameplate, s: Record<string, unknown>, knownPf?: num
     }) * SQRT3
   );
 }
-
-describe('terminalReadings (closed-form forward model)', () => {
-  it('equals lib/physics generatorTerminals, including unbalanced and demagnetised machines', () => {
-    const spec = { keVPerKrpm: 2233.3, keRefC: 20, magnet: 'ndfeb' as const, poles: 24, phaseOhm: 0.605, phaseMh: 18.2 };
-    fc.assert(
-      fc.property(
-        fc.double({ min: 20, max: 320, noNaN: true }),
-        fc.double({ min: 0, max: 25, noNaN: true }),
-        fc.double({ min: 0.6, max: 1, noNaN: true }),
-        fc.double({ min: -20, max: 120, noNaN: true }),
-        fc.double({ min: 0.7, max: 1, noNaN: true }),
-        fc.double({ min: 0.85, max: 1, noNaN: true }),
-        (rpm, kw, pf, tempC, flux, phaseB) => {
-          const point = { rpm, kw, powerFactor: pf, magnetC: tempC, windingC: tempC, fluxFactor: flux, phaseEmfFactors: [1, phaseB, 1] as const };
-          const fast = terminalReadings(spec, point);
-          const slow = generatorTerminals(spec, point);
-          expect(fast === undefined).toBe(slow === undefined);
-          if (fast === undefined || slow === undefined) return;
-          for (const key of ['hz', 'emfLlV', 'vab', 'vbc', 'vca', 'ia', 'kw'] as const) {
-            expect(fast[key]).toBeCloseTo(slow[key], 6);
-          }
-        },
-      ),
-      { numRuns: 300 },
-    );
-  });
-});
 
 describe('UnitModel electrical physics', () => {
   it('reads Ke·rpm/1000 at the terminals on open circuit at the reference temperature (definition of Ke, contract section 2)', () => {

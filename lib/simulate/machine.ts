@@ -23,8 +23,7 @@
 import type { Nameplate } from '../contract/nameplate';
 import { TELEMETRY_FIELDS } from '../contract/telemetry';
 import { SQRT3 } from '../physics/emf';
-import { emfLineVolts, type GeneratorSpec, type OperatingPoint, type TerminalReadings } from '../physics/generator-model';
-import { electricalHz } from '../physics/synchronous-speed';
+import { generatorTerminals, type GeneratorSpec, type TerminalReadings } from '../physics/generator-model';
 import { copperOhmAt } from '../physics/winding-resistance';
 import { reactanceOhm } from '../physics/reactance';
 import { powerCurveLookup } from '../energy/power-curve';
@@ -148,86 +147,6 @@ export function isoWithOffset(tMs: number, offsetMinutes: number): string {
   return `${local}${sign}${String(Math.floor(abs / 60)).padStart(2, '0')}:${String(abs % 60).padStart(2, '0')}`;
 }
 
-/**
- * Terminal readings of `spec` at `point`, as lib/physics generatorTerminals
- * gives them (same circuit, same load, same per-phase EMF factors), with the
- * phase current in closed form instead of a numeric search: a backfill
- * steps millions of times. Per phase, with V = P/(I·cos φ) and the drops
- * a = R·cos φ + X·sin φ, b = X·cos φ − R·sin φ, the circuit
- * E² = (V + a·I)² + (b·I)² becomes |Z|²·I⁴ + (2a·P′ − E²)·I² + P′² = 0
- * with P′ = P/cos φ, a quadratic in I²; the smaller root is the stable
- * operating point (higher terminal voltage). Undefined when the machine
- * cannot deliver the asked power at that speed. Tests hold it equal to
- * generatorTerminals.
- * @example terminalReadings({ keVPerKrpm: 400, keRefC: 20, magnet: 'ndfeb', poles: 24, phaseOhm: 0.3, phaseMh: 2 }, { rpm: 1000, kw: 10 })?.ia // ≈ 14.92
- */
-export function terminalReadings(spec: GeneratorSpec, point: OperatingPoint): TerminalReadings | undefined {
-  const powerFactor = point.powerFactor ?? 1;
-  if (!(powerFactor > 0 && powerFactor <= 1)) throw new RangeError(`powerFactor must be above 0 and at most 1, got ${powerFactor}`);
-  if (!(point.kw >= 0) || !Number.isFinite(point.kw)) throw new RangeError(`kw must be 0 kW or more, got ${point.kw}`);
-  const fluxFactor = point.fluxFactor ?? 1;
-  if (!(fluxFactor > 0) || !Number.isFinite(fluxFactor)) throw new RangeError(`fluxFactor must be above 0, got ${fluxFactor}`);
-  const factors = point.phaseEmfFactors ?? [1, 1, 1];
-  for (const f of factors) {
-    if (!(f > 0) || !Number.isFinite(f)) throw new RangeError(`phaseEmfFactors must all be above 0, got ${factors.join(', ')}`);
-  }
-  const hz = electricalHz(spec.poles, point.rpm);
-  const emfPhaseV = (emfLineVolts(spec, point.rpm, point.magnetC ?? spec.keRefC) * fluxFactor) / SQRT3;
-  const ohm = copperOhmAt(spec.phaseOhm, point.windingC ?? 20);
-  const x = reactanceOhm(hz, spec.phaseMh);
-  const meanFactor = (factors[0] + factors[1] + factors[2]) / 3;
-  const sinPhi = Math.sqrt(1 - powerFactor * powerFactor);
-  const a = ohm * powerFactor + x * sinPhi;
-  const b = x * powerFactor - ohm * sinPhi;
-  let currentA = 0;
-  if (point.kw > 0) {
-    const e = emfPhaseV * meanFactor;
-    if (e === 0) return undefined;
-    const pPrime = (point.kw * 1000) / 3 / powerFactor;
-    const z2 = ohm * ohm + x * x;
-    if (z2 === 0) currentA = pPrime / e;
-    else {
-      const c = e * e - 2 * a * pPrime;
-      const disc = c * c - 4 * z2 * pPrime * pPrime;
-      if (!(c > 0) || disc < 0) return undefined;
-      // 2P′²/(c + √disc) is the smaller root without cancellation.
-      currentA = Math.sqrt((2 * pPrime * pPrime) / (c + Math.sqrt(disc)));
-    }
-  }
-  const inPhaseDrop = currentA * a;
-  const quadratureDrop = currentA * b;
-  const re: number[] = [];
-  const im: number[] = [];
-  let watts = 0;
-  for (let k = 0; k < 3; k++) {
-    const ek = emfPhaseV * (factors[k] as number);
-    let v = ek;
-    if (currentA > 0) {
-      const inPhase2 = ek * ek - quadratureDrop * quadratureDrop;
-      if (inPhase2 < 0) return undefined;
-      v = Math.sqrt(inPhase2) - inPhaseDrop;
-      if (!(v > 0)) return undefined;
-    }
-    // E leads V by the angle of (V + a·I) + j·b·I.
-    const angle = (-2 * Math.PI * k) / 3 - (currentA > 0 ? Math.atan2(quadratureDrop, v + inPhaseDrop) : 0);
-    re.push(v * Math.cos(angle));
-    im.push(v * Math.sin(angle));
-    watts += v * currentA * powerFactor;
-  }
-  const line = (i: number, j: number) => Math.hypot((re[i] as number) - (re[j] as number), (im[i] as number) - (im[j] as number));
-  return {
-    hz,
-    emfLlV: emfPhaseV * meanFactor * SQRT3,
-    vab: line(0, 1),
-    vbc: line(1, 2),
-    vca: line(2, 0),
-    ia: currentA,
-    ib: currentA,
-    ic: currentA,
-    kw: watts / 1000,
-    powerFactor,
-  };
-}
 
 /** Wind speed, m/s, at which a power curve first reaches (99 % of) rated power. */
 export function ratedWindMs(np: Nameplate): number {
@@ -295,7 +214,7 @@ export class UnitModel {
       phaseMh: np.phaseMh,
     };
     this.powerFactor = LOAD_POWER_FACTOR[scenario.load];
-    const rated = terminalReadings(this.spec, {
+    const rated = generatorTerminals(this.spec, {
       rpm: np.ratedRpm,
       kw: np.ratedKw,
       powerFactor: this.powerFactor,
@@ -491,11 +410,11 @@ export class UnitModel {
     let kw = kwAsked;
     // The converter limits its current when the machine cannot carry the asked power at this speed.
     for (let i = 0; i < 40 && kw > 0; i++) {
-      const r = terminalReadings(this.spec, { ...point, kw });
+      const r = generatorTerminals(this.spec, { ...point, kw });
       if (r !== undefined) return r;
       kw *= 0.85;
     }
-    return terminalReadings(this.spec, { ...point, kw: 0 })!;
+    return generatorTerminals(this.spec, { ...point, kw: 0 })!;
   }
 
   /** What the unit's sensors and logger report. */
