@@ -9,9 +9,8 @@
  * the batch is retried with backoff, nothing is acknowledged, the outage is
  * logged once and its end once.
  */
-import type { DatabaseHandle } from '../../db/client';
 import type { Logger } from '../log/logger';
-import { isTransientDbError } from './sql';
+import { CommitTimeoutError, isTransientDbError, type IngestDatabase } from './sql';
 import type { UnitDirectory } from './unit-directory';
 import { writeBatch, type BatchResult, type DecodedMessage } from './writer';
 
@@ -26,7 +25,7 @@ export interface PendingMessage extends DecodedMessage {
 }
 
 export interface BatcherOptions {
-  handle: DatabaseHandle;
+  database: IngestDatabase;
   directory: UnitDirectory;
   log: Logger;
   batchSamples: number;
@@ -35,6 +34,8 @@ export interface BatcherOptions {
   /** First retry delay after a failed commit, ms; doubles up to `maxRetryMs`. */
   retryMs?: number;
   maxRetryMs?: number;
+  /** A commit that takes longer counts as the database being out of reach (PostgreSQL), ms. */
+  commitTimeoutMs?: number;
   now?: () => number;
 }
 
@@ -69,7 +70,8 @@ function weightOf(m: DecodedMessage): number {
 const sleep = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve, ms));
 
 export function createBatcher(options: BatcherOptions) {
-  const { handle, directory, log, batchSamples, batchMs, bufferSamples } = options;
+  const { database, directory, log, batchSamples, batchMs, bufferSamples } = options;
+  const commitTimeoutMs = options.commitTimeoutMs ?? 60_000;
   const retryMs = options.retryMs ?? 250;
   const maxRetryMs = options.maxRetryMs ?? 10_000;
   const now = options.now ?? Date.now;
@@ -97,7 +99,7 @@ export function createBatcher(options: BatcherOptions) {
     releasedForRedelivery: 0,
     unknownFieldMessages: 0,
   };
-  const database: BatcherState['database'] = { reachable: true, outages: 0 };
+  const dbState: BatcherState['database'] = { reachable: true, outages: 0 };
   let lastBatch: BatcherState['lastBatch'];
 
   const held = () => pendingWeight + inFlightWeight;
@@ -173,13 +175,13 @@ export function createBatcher(options: BatcherOptions) {
 
   function noteOutage(error: unknown) {
     counters.failedCommits++;
-    database.lastError = error instanceof Error ? error.message : String(error);
-    if (database.reachable) {
-      database.reachable = false;
-      database.outageSinceMs = now();
-      database.outages++;
+    dbState.lastError = error instanceof Error ? error.message : String(error);
+    if (dbState.reachable) {
+      dbState.reachable = false;
+      dbState.outageSinceMs = now();
+      dbState.outages++;
       log.error('database unreachable: holding messages unacknowledged and retrying', {
-        database: handle.location,
+        database: database.location,
         error,
         bufferedSamples: held(),
       });
@@ -187,14 +189,32 @@ export function createBatcher(options: BatcherOptions) {
   }
 
   function noteRecovery() {
-    if (database.reachable) return;
-    database.reachable = true;
+    if (dbState.reachable) return;
+    dbState.reachable = true;
     log.info('database reachable again', {
-      database: handle.location,
-      outageMs: now() - (database.outageSinceMs ?? now()),
+      database: database.location,
+      outageMs: now() - (dbState.outageSinceMs ?? now()),
       bufferedSamples: held(),
     });
-    database.outageSinceMs = undefined;
+    dbState.outageSinceMs = undefined;
+  }
+
+  /** One write, with a watchdog on PostgreSQL: a connection can hang rather than fail. */
+  async function write(batch: PendingMessage[]): Promise<BatchResult> {
+    const writing = writeBatch({ database, directory, messages: batch });
+    if (database.backend !== 'postgres') return writing;
+    let timer: NodeJS.Timeout | undefined;
+    try {
+      return await Promise.race([
+        writing,
+        new Promise<never>((_, reject) => {
+          timer = setTimeout(() => reject(new CommitTimeoutError(commitTimeoutMs)), commitTimeoutMs);
+        }),
+      ]);
+    } finally {
+      clearTimeout(timer);
+      writing.catch(() => {});
+    }
   }
 
   type Attempt = { ok: true } | { ok: false; error: unknown } | { aborted: true };
@@ -210,12 +230,15 @@ export function createBatcher(options: BatcherOptions) {
       if (batch.length === 0) return { ok: true };
       const startedAt = now();
       try {
-        const result = await writeBatch({ handle, directory, messages: batch });
+        const result = await write(batch);
         noteRecovery();
         account(result, batch, startedAt);
         for (const m of batch) m.ack();
         return { ok: true };
       } catch (error) {
+        // A fresh client: a connection that failed may never send again, and a fresh
+        // partition cache makes any partition dropped meanwhile again.
+        database.reset();
         if (!isTransientDbError(error)) {
           counters.failedCommits++;
           return { ok: false, error };
@@ -326,7 +349,7 @@ export function createBatcher(options: BatcherOptions) {
         bufferedSamples: held(),
         bufferLimit: bufferSamples,
         committing: committing !== undefined,
-        database: { ...database },
+        database: { ...dbState },
         lastBatch: lastBatch && { ...lastBatch },
       };
     },

@@ -46,7 +46,12 @@ export interface ConnectionPoolOptions {
   /** How long the broker keeps a session (and its unacknowledged messages) while the ingester is away, s. */
   sessionExpirySeconds?: number;
   keepaliveSeconds?: number;
-  /** First reconnect delay, ms; doubles on each failure up to `maxReconnectMs`. */
+  /**
+   * First reconnect delay, ms; doubles on each failure up to `maxReconnectMs`.
+   * Kept short: Mosquitto 2.0.11 does not restore shared subscriptions from
+   * its persistence file, so after a broker restart the share group receives
+   * nothing until an ingester has subscribed again (see DESIGN.md).
+   */
   reconnectMs?: number;
   maxReconnectMs?: number;
   /**
@@ -81,8 +86,8 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
     onDelivery,
     sessionExpirySeconds = 7 * 86_400,
     keepaliveSeconds = 60,
-    reconnectMs = 500,
-    maxReconnectMs = 10_000,
+    reconnectMs = 250,
+    maxReconnectMs = 2_000,
   } = options;
   const count = mqtt5 ? options.connections : 1;
   if (!mqtt5 && options.connections > 1) {

@@ -12,7 +12,7 @@ import { createBatcher, type BatcherCounters } from './batcher';
 import { openConnectionPool, type ConnectionState, type Delivery } from './connections';
 import { QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload } from './decode';
 import { runTelemetryMaintenance } from './maintenance';
-import { sqlRunner } from './sql';
+import { openIngestDatabase } from './sql';
 import { DEFAULT_SHARE_GROUP, parseUnitTopic } from './topics';
 import { createUnitDirectory } from './unit-directory';
 import type { DecodedMessage } from './writer';
@@ -93,9 +93,10 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
   const clientId = options.clientId ?? defaultIngestClientId();
   const retentionDays = options.retentionDays ?? 90;
   const startedAt = new Date();
-  const directory = createUnitDirectory({ db: sqlRunner(handle) });
+  const database = await openIngestDatabase(handle);
+  const directory = createUnitDirectory({ db: database.runner });
   const batcher = createBatcher({
-    handle,
+    database,
     directory,
     log,
     batchSamples: options.batchSamples,
@@ -109,7 +110,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
 
   const maintain = async () => {
     try {
-      const result = await runTelemetryMaintenance({ handle, retentionDays });
+      const result = await runTelemetryMaintenance({ db: database.db(), retentionDays });
       retention.lastRunAt = new Date().toISOString();
       retention.droppedPartitions += result.dropped.length;
       retention.lastError = undefined;
@@ -242,9 +243,10 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
     retentionDays,
   });
 
-  const finish = () => {
+  const finish = async () => {
     stopped = true;
     for (const t of timers) clearInterval(t);
+    await database.close();
   };
 
   return {
@@ -255,7 +257,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       pool.pause();
       await batcher.stop({ drain: true });
       await pool.close();
-      finish();
+      await finish();
       log.info('ingester stopped', { counters: batcher.state().counters });
     },
     async abort() {
@@ -263,7 +265,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       pool.pause();
       await pool.close({ force: true });
       await batcher.stop({ drain: false });
-      finish();
+      await finish();
       log.warn('ingester aborted; unacknowledged messages will be delivered again', {});
     },
   };

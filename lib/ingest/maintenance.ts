@@ -3,8 +3,7 @@
  * dropping whole monthly partitions once every day in them is older than
  * that; rollups are kept for ever.
  */
-import type { DatabaseHandle } from '../../db/client';
-import { PARTITION_MONTHS_AHEAD } from '../../db/client';
+import { PARTITION_MONTHS_AHEAD, type Db } from '../../db/client';
 import { dropPartitionsBefore, ensureMonthlyPartitions, monthStartMs, nextMonthStartMs } from '../../db/partitions';
 
 const MS_PER_DAY = 86_400_000;
@@ -17,18 +16,18 @@ export interface MaintenanceResult {
 
 /** Drops partitions past retention and makes those of the months ahead. */
 export async function runTelemetryMaintenance({
-  handle,
+  db,
   retentionDays,
   nowMs = Date.now(),
 }: {
-  handle: DatabaseHandle;
+  db: Db;
   retentionDays: number;
   nowMs?: number;
 }): Promise<MaintenanceResult> {
   const cutoffMs = nowMs - retentionDays * MS_PER_DAY;
-  const dropped = await dropPartitionsBefore({ db: handle.db, cutoffMs });
+  const dropped = await dropPartitionsBefore({ db, cutoffMs });
   let ahead = nowMs;
   for (let i = 0; i < PARTITION_MONTHS_AHEAD; i++) ahead = nextMonthStartMs(ahead);
-  const created = await ensureMonthlyPartitions({ db: handle.db, fromMs: monthStartMs(nowMs), toMs: ahead });
+  const created = await ensureMonthlyPartitions({ db, fromMs: monthStartMs(nowMs), toMs: ahead });
   return { dropped, created, cutoffMs };
 }

@@ -1,40 +1,129 @@
 /**
- * Raw SQL on either driver, for the ingest path: postgres-js (`handle.sql`)
- * or PGlite (`handle.pglite`). Statements are plain text with `$n` array
- * parameters, so the same SQL runs on both.
+ * Raw SQL on either driver, for the ingest path: postgres-js or PGlite.
+ * Statements are plain text with `$n` array parameters, so the same SQL runs
+ * on both.
+ *
+ * On PostgreSQL the ingester keeps a postgres-js client of its own, apart
+ * from the application's pool, and replaces it after a connection failure.
+ * postgres-js 3.4.9 can leave a connection that died mid-write unable to send
+ * again (a query then waits for ever), and `sql.begin` sends ROLLBACK on the
+ * dead connection, which can throw outside any promise and end the process.
+ * So transactions run on a reserved connection, no ROLLBACK is sent after a
+ * connection failure (the server rolls back on its own), and after any
+ * failure the whole client is replaced by a fresh one.
  */
-import type { DatabaseHandle } from '../../db/client';
+import type postgres from 'postgres';
+import type { DatabaseHandle, Db } from '../../db/client';
 
 /** Runs one statement and returns its rows. */
 export interface SqlRunner {
   query<T = Record<string, unknown>>(text: string, params?: readonly unknown[]): Promise<T[]>;
 }
 
-function runnerOfPostgres(sql: NonNullable<DatabaseHandle['sql']>): SqlRunner {
+/** The ingester's way into the database. */
+export interface IngestDatabase {
+  backend: DatabaseHandle['backend'];
+  location: string;
+  /** Statements outside a transaction. */
+  runner: SqlRunner;
+  /** drizzle over the same client (for db/partitions.ts). */
+  db(): Db;
+  /** Runs `fn` in one transaction: committed when it resolves, rolled back when it throws. */
+  transaction<T>(fn: (tx: SqlRunner) => Promise<T>): Promise<T>;
+  /** Replaces the client after a failure (PostgreSQL); nothing on PGlite. */
+  reset(): void;
+  close(): Promise<void>;
+}
+
+function runnerOf(sql: postgres.Sql | postgres.ReservedSql): SqlRunner {
   return {
     query: async <T>(text: string, params: readonly unknown[] = []) =>
       (await sql.unsafe(text, params as never[], { prepare: true })) as unknown as T[],
   };
 }
 
-/** A runner outside any transaction. */
+/** A runner on the handle's own client, outside any transaction (tests, tools). */
 export function sqlRunner(handle: DatabaseHandle): SqlRunner {
-  if (handle.sql) return runnerOfPostgres(handle.sql);
+  if (handle.sql) return runnerOf(handle.sql);
   const pglite = handle.pglite;
   if (!pglite) throw new Error(`database handle ${handle.location} has neither a postgres-js client nor a PGlite instance`);
   return { query: async <T>(text: string, params: readonly unknown[] = []) => (await pglite.query<T>(text, params as unknown[])).rows };
 }
 
-/** Runs `fn` in one transaction: committed when it resolves, rolled back when it throws. */
+/**
+ * Runs `fn` in one transaction on the handle's own client (tests, tools); the
+ * ingester itself uses {@link openIngestDatabase}.
+ */
 export async function inTransaction<T>(handle: DatabaseHandle, fn: (tx: SqlRunner) => Promise<T>): Promise<T> {
-  if (handle.sql) {
-    return (await handle.sql.begin((tx) => fn(runnerOfPostgres(tx as unknown as NonNullable<DatabaseHandle['sql']>)))) as T;
-  }
+  if (handle.sql) return (await handle.sql.begin((tx) => fn(runnerOf(tx as unknown as postgres.Sql)))) as T;
   const pglite = handle.pglite;
   if (!pglite) throw new Error(`database handle ${handle.location} has neither a postgres-js client nor a PGlite instance`);
   return pglite.transaction((tx) =>
     fn({ query: async <R>(text: string, params: readonly unknown[] = []) => (await tx.query<R>(text, params as unknown[])).rows }),
   );
+}
+
+/** The ingester's own access to the handle's database. */
+export async function openIngestDatabase(handle: DatabaseHandle): Promise<IngestDatabase> {
+  if (handle.backend === 'pglite') {
+    const pglite = handle.pglite;
+    if (!pglite) throw new Error(`database handle ${handle.location} has no PGlite instance`);
+    return {
+      backend: 'pglite',
+      location: handle.location,
+      runner: { query: async <T>(text: string, params: readonly unknown[] = []) => (await pglite.query<T>(text, params as unknown[])).rows },
+      db: () => handle.db,
+      transaction: (fn) =>
+        pglite.transaction((tx) =>
+          fn({ query: async <R>(text: string, params: readonly unknown[] = []) => (await tx.query<R>(text, params as unknown[])).rows }),
+        ),
+      reset: () => {},
+      close: async () => {},
+    };
+  }
+  if (!handle.url) throw new Error(`database handle ${handle.location} has no URL`);
+  const url = handle.url;
+  const { default: postgresFactory } = await import('postgres');
+  const { drizzle } = await import('drizzle-orm/postgres-js');
+  const connect = () => {
+    const sql = postgresFactory(url, { max: 2, onnotice: () => {}, connect_timeout: 10, idle_timeout: 0 });
+    return { sql, db: drizzle(sql, { casing: 'snake_case' }) as unknown as Db };
+  };
+  let current = connect();
+  const retired = new Set<postgres.Sql>();
+  const retire = (sql: postgres.Sql) => {
+    retired.add(sql);
+    void sql.end({ timeout: 0 }).catch(() => {}).finally(() => retired.delete(sql));
+  };
+  return {
+    backend: 'postgres',
+    location: handle.location,
+    runner: { query: (text, params) => runnerOf(current.sql).query(text, params) },
+    db: () => current.db,
+    async transaction<T>(fn: (tx: SqlRunner) => Promise<T>): Promise<T> {
+      const reserved = await current.sql.reserve();
+      const tx = runnerOf(reserved);
+      try {
+        await tx.query('begin');
+        const result = await fn(tx);
+        await tx.query('commit');
+        return result;
+      } catch (error) {
+        if (!isTransientDbError(error)) await tx.query('rollback').catch(() => {});
+        throw error;
+      } finally {
+        reserved.release();
+      }
+    },
+    reset() {
+      retire(current.sql);
+      current = connect();
+    },
+    async close() {
+      await current.sql.end({ timeout: 5 }).catch(() => {});
+      for (const sql of retired) await sql.end({ timeout: 0 }).catch(() => {});
+    },
+  };
 }
 
 const TRANSIENT_CODES = new Set([
@@ -50,6 +139,7 @@ const TRANSIENT_CODES = new Set([
   'CONNECTION_ENDED',
   'CONNECTION_DESTROYED',
   'CONNECT_TIMEOUT',
+  'COMMIT_TIMEOUT',
   // SQLSTATE: admin shutdown, crash shutdown, cannot connect now, too many connections,
   // serialization failure, deadlock, out of memory / disk (the server may recover).
   '57P01',
@@ -83,5 +173,14 @@ export function isTransientDbError(error: unknown): boolean {
   const codes = codesOf(error);
   if (codes.some((c) => TRANSIENT_CODES.has(c) || c.startsWith('08'))) return true;
   const message = error instanceof Error ? error.message : String(error);
-  return /connect|terminat|socket|timeout|closed/i.test(message) && codes.length === 0;
+  return codes.length === 0 && /connect|terminat|socket|timed? ?out|closed/i.test(message);
+}
+
+/** An error that counts as the database being out of reach. */
+export class CommitTimeoutError extends Error {
+  readonly code = 'COMMIT_TIMEOUT';
+  constructor(ms: number) {
+    super(`the database did not answer within ${ms} ms`);
+    this.name = 'CommitTimeoutError';
+  }
 }

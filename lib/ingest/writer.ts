@@ -2,7 +2,6 @@
  * Commits one batch of decoded messages: samples, both rollups, quarantine
  * and unit status in one transaction.
  */
-import type { DatabaseHandle } from '../../db/client';
 import { ensureMonthlyPartitions } from '../../db/partitions';
 import type { TelemetrySample } from '../contract/telemetry';
 import type { QuarantineEntry } from './decode';
@@ -22,7 +21,7 @@ import {
   type UnitSeen,
 } from './queries';
 import { computeRollupDeltas, rollupSampleOf, type RollupDelta, type RollupSample } from './rollups';
-import { inTransaction } from './sql';
+import type { IngestDatabase } from './sql';
 import { pairKey, type UnitDirectory } from './unit-directory';
 
 /** A message as the batch holds it, decoded at arrival. */
@@ -62,11 +61,11 @@ export interface BatchResult {
  * cannot be reached; nothing of the batch is then stored.
  */
 export async function writeBatch({
-  handle,
+  database,
   directory,
   messages,
 }: {
-  handle: DatabaseHandle;
+  database: IngestDatabase;
   directory: UnitDirectory;
   messages: readonly DecodedMessage[];
 }): Promise<BatchResult> {
@@ -141,7 +140,7 @@ export async function writeBatch({
 
   // Index order: neighbouring rows land on the same index pages.
   rows.sort((a, b) => a.unitKey - b.unitKey || a.sample.ts - b.sample.ts);
-  if (rows.length > 0) await ensureMonthlyPartitions({ db: handle.db, fromMs: minTs, toMs: maxTs });
+  if (rows.length > 0) await ensureMonthlyPartitions({ db: database.db(), fromMs: minTs, toMs: maxTs });
 
   const windows: EnergyWindow[] = [];
   for (let i = 0; i < rows.length; ) {
@@ -158,8 +157,8 @@ export async function writeBatch({
     if (lo <= hi) windows.push({ unitKey, fromMs: lo, toMs: hi });
   }
 
-  const result = await inTransaction(handle, async (tx) => {
-    if (handle.backend === 'postgres') await lockUnitKeys({ tx, unitKeys: [...new Set(rows.map((r) => r.unitKey))] });
+  const result = await database.transaction(async (tx) => {
+    if (database.backend === 'postgres') await lockUnitKeys({ tx, unitKeys: [...new Set(rows.map((r) => r.unitKey))] });
     const neighbours = await getEnergyNeighbours({ tx, windows });
     const inserted = await insertSampleRows({ tx, rows });
 

@@ -4,6 +4,7 @@
  * messages and sends them again after a reconnect), and polling helpers
  * (they wait for a state, never for a time).
  */
+import { spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import mqtt, { type MqttClient } from 'mqtt';
 import { startEmbeddedBroker } from '../../lib/broker/embedded';
@@ -11,7 +12,6 @@ import { fleetSchema, type Fleet } from '../../lib/contract/nameplate';
 import { createLogger, type Logger } from '../../lib/log/logger';
 import { upsertFleet } from '../../lib/fleet/queries';
 import { freePort } from '../../lib/server/ports';
-import { sqlRunner } from '../../lib/ingest/sql';
 import type { DatabaseHandle } from '../../db/client';
 import { realBrokerUrl } from './backend';
 
@@ -121,12 +121,12 @@ export interface Outgoing {
  * persistent session so that messages not yet acknowledged by the broker are
  * sent again after a reconnect (mqtt.js keeps them in its outgoing store).
  */
-export async function openPublisher(url: string, { mqtt5 = true, clientId = `test-pub-${testTag()}` } = {}) {
+export async function openPublisher(url: string, { mqtt5 = true, clientId = `test-pub-${testTag()}`, reconnectPeriod = 200 } = {}) {
   const client: MqttClient = mqtt.connect(url, {
     clientId,
     protocolVersion: mqtt5 ? 5 : 4,
     clean: false,
-    reconnectPeriod: 200,
+    reconnectPeriod,
     ...(mqtt5 ? { properties: { sessionExpiryInterval: 3600 } } : {}),
   });
   client.on('error', () => {});
@@ -176,7 +176,8 @@ export async function waitFor(what: string, check: () => Promise<boolean> | bool
 
 /** Runs a query on the handle's driver and returns its rows. */
 export async function queryRows<T = Record<string, unknown>>(handle: DatabaseHandle, text: string, params: unknown[] = []): Promise<T[]> {
-  return sqlRunner(handle).query<T>(text, params);
+  if (handle.sql) return (await handle.sql.unsafe(text, params as never[])) as unknown as T[];
+  return (await handle.pglite!.query<T>(text, params)).rows;
 }
 
 /** Rows in telemetry_samples, and distinct (unit, ts) pairs among them. */
@@ -206,4 +207,33 @@ export function samplesPayload(startMs: number, count: number, stepMs: number, s
     });
   }
   return JSON.stringify(samples);
+}
+
+/** The standalone ingester (`npm run ingest`) as a child process. */
+export function spawnIngester(env: Record<string, string>) {
+  const root = new URL('../../', import.meta.url);
+  const child = spawn(process.execPath, ['bin/run.mjs', 'lib/ingest/main.ts'], {
+    cwd: root,
+    env: { ...process.env, LOG_LEVEL: 'warn', ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let output = '';
+  child.stdout!.on('data', (chunk: Buffer) => (output += chunk.toString()));
+  child.stderr!.on('data', (chunk: Buffer) => (output += chunk.toString()));
+  const exited = new Promise<number | null>((resolve) => child.once('exit', (code, signal) => resolve(code ?? (signal ? -1 : null))));
+  return {
+    pid: child.pid,
+    output: () => output,
+    exited,
+    /** Sends `signal` and waits for the exit; resolves with the exit code (-1 when killed by the signal). */
+    async stop(signal: NodeJS.Signals): Promise<number | null> {
+      if (child.exitCode === null && child.signalCode === null) child.kill(signal);
+      return exited;
+    },
+  };
+}
+
+/** The admin URL for making databases on the real PostgreSQL (TEST_DATABASE_URL, else DATABASE_URL, else the local server). */
+export function adminDatabaseUrl(): string {
+  return process.env.TEST_DATABASE_URL || process.env.DATABASE_URL || 'postgres://postgres@127.0.0.1:5432/postgres';
 }
