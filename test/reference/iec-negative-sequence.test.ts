@@ -28,7 +28,10 @@ describe('IEC 61000-4-30 u2 from magnitudes', () => {
           const uca = sub(vc, va);
           const fromPhasors = negativeSequencePctOfPhasors(uab, ubc, uca)!;
           const fromMagnitudes = negativeSequenceUnbalancePct(abs(uab), abs(ubc), abs(uca))!;
-          expect(fromMagnitudes).toBeCloseTo(fromPhasors, 6);
+          // The magnitude formula is ill-conditioned near balance: u2 goes as the square root of
+          // β − 1/3, so a rounding error of 1e-16 in β shows as about 1e-6 % in u2. Agreement to
+          // 1e-4 % is far finer than any voltage measurement.
+          expect(fromMagnitudes).toBeCloseTo(fromPhasors, 4);
           // Line and phase quantities share |V2|/|V1| when the phase set carries zero sequence only besides.
           expect(negativeSequencePctOfPhasors(va, vb, vc)).toBeCloseTo(fromPhasors, 6);
         },
