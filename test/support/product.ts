@@ -46,7 +46,11 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
   child.stderr!.on('data', (d) => (output += String(d)));
   const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
 
-  const url = await new Promise<string>((resolve, reject) => {
+  const cleanUp = async () => {
+    rmSync(dir, { recursive: true, force: true });
+    await dropDb?.();
+  };
+  const served = new Promise<string>((resolve, reject) => {
     const timer = setTimeout(() => reject(new Error(`millrace did not start in ${timeoutMs} ms:\n${output}`)), timeoutMs);
     const poll = setInterval(() => {
       const m = /millrace is running at (http:\/\/\S+)/.exec(output);
@@ -62,6 +66,17 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
       reject(new Error(`millrace exited with ${code} before it served:\n${output}`));
     });
   });
+  let url: string;
+  try {
+    url = await served;
+  } catch (error) {
+    if (child.exitCode === null) {
+      child.kill('SIGKILL');
+      await exited;
+    }
+    await cleanUp();
+    throw error;
+  }
 
   return {
     url,
@@ -75,8 +90,7 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
         await exited;
         clearTimeout(timer);
       }
-      rmSync(dir, { recursive: true, force: true });
-      await dropDb?.();
+      await cleanUp();
     },
   };
 }
