@@ -53,6 +53,10 @@ export const envSchema = z.object({
     .string()
     .regex(/^[A-Za-z0-9._-]{1,64}$/, 'expected letters, digits, dot, dash or underscore, at most 64')
     .optional(),
+  INGEST_SHARE_GROUP: z
+    .string()
+    .regex(/^[A-Za-z0-9._-]{1,64}$/, 'expected letters, digits, dot, dash or underscore, at most 64')
+    .default('millrace-ingest'),
   INGEST_CONNECTIONS: positiveInt('a number of MQTT connections', 64).default(4),
   INGEST_BATCH_SAMPLES: positiveInt('a number of samples per batch', 50_000).default(5000),
   INGEST_BATCH_MS: positiveInt('a number of milliseconds', 10_000).default(200),

@@ -11,6 +11,7 @@
  */
 import type { Logger } from '../log/logger';
 import { CommitTimeoutError, isTransientDbError, type IngestDatabase } from './sql';
+import { EMPTY_BLOCK } from './sample-block';
 import type { UnitDirectory } from './unit-directory';
 import { writeBatch, type BatchResult, type DecodedMessage } from './writer';
 
@@ -64,7 +65,7 @@ export interface BatcherState {
 }
 
 function weightOf(m: DecodedMessage): number {
-  return Math.max(1, m.samples.length + m.quarantined.length);
+  return Math.max(1, m.samples.count + m.quarantined.length);
 }
 
 const sleep = (ms: number) => new Promise<void>((resolve) => setTimeout(resolve, ms));
@@ -160,7 +161,7 @@ export function createBatcher(options: BatcherOptions) {
     let samples = 0;
     let oldest = Infinity;
     for (const m of batch) {
-      samples += m.samples.length;
+      samples += m.samples.count;
       if (m.receivedAtMs < oldest) oldest = m.receivedAtMs;
     }
     lastBatch = {
@@ -171,6 +172,7 @@ export function createBatcher(options: BatcherOptions) {
       waitMs: Number.isFinite(oldest) ? end - oldest : 0,
       atMs: end,
     };
+    log.debug('batch committed', { messages: batch.length, ...lastBatch, pendingSamples: pendingWeight });
   }
 
   function noteOutage(error: unknown) {
@@ -271,7 +273,7 @@ export function createBatcher(options: BatcherOptions) {
         // Refused on its own: quarantine it whole, with the database's words.
         const reason = `the database refused this message: ${alone.error instanceof Error ? alone.error.message : String(alone.error)}`;
         log.error('message refused by the database; quarantining it', { topic: m.topic, error: alone.error });
-        const stand: PendingMessage = { ...m, kind: 'bad-topic', samples: [], quarantined: [], unknownFields: [], topicProblem: reason };
+        const stand: PendingMessage = { ...m, kind: 'bad-topic', samples: EMPTY_BLOCK, quarantined: [], unknownFields: [], topicProblem: reason };
         const quarantined = await attempt([stand]);
         if (!('ok' in quarantined)) return;
         if (!quarantined.ok) {
@@ -314,7 +316,7 @@ export function createBatcher(options: BatcherOptions) {
     /** Adds a message; resolves at once while there is room, later when the buffer has drained below its limit. */
     add(message: PendingMessage): void {
       counters.messages++;
-      counters.samplesIn += message.samples.length;
+      counters.samplesIn += message.samples.count;
       if (message.unknownFields.length > 0) counters.unknownFieldMessages++;
       if (pending.length === 0) firstPendingAt = message.receivedAtMs;
       pending.push(message);

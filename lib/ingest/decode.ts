@@ -4,12 +4,8 @@
  * quarantine entry whose reason says what to fix. One bad sample in an array
  * does not reject its good neighbours.
  */
-import {
-  describeValue,
-  parseTelemetrySample,
-  telemetrySampleSchema,
-  type TelemetrySample,
-} from '../contract/telemetry';
+import { describeValue, parseTelemetrySample, telemetrySampleSchema } from '../contract/telemetry';
+import { EMPTY_BLOCK, appendSample, createSampleBlock, type SampleBlock } from './sample-block';
 
 /** Largest payload the ingester reads, bytes (256 KiB). */
 export const MAX_PAYLOAD_BYTES = 256 * 1024;
@@ -38,7 +34,8 @@ export interface QuarantineEntry {
 }
 
 export interface DecodedTelemetry {
-  samples: TelemetrySample[];
+  /** The valid samples, compactly. */
+  samples: SampleBlock;
   quarantined: QuarantineEntry[];
   /** Names of fields the contract does not know, seen in valid samples (kept nowhere). */
   unknownFields: string[];
@@ -88,6 +85,7 @@ export function jsonDepth(text: string, limit = MAX_JSON_DEPTH): number {
 }
 
 const utf8 = new TextDecoder('utf-8', { fatal: true });
+const NO_FIELDS: string[] = Object.freeze([]) as unknown as string[];
 
 export interface TelemetryDecoderOptions {
   /** Samples older than this many days are refused (they would be deleted at once by retention). */
@@ -97,15 +95,15 @@ export interface TelemetryDecoderOptions {
 /**
  * Builds a decoder. `decode(payload, receivedAtMs)` validates against the
  * contract schema with "now" = the time the message was received.
- * @example createTelemetryDecoder({ retentionDays: 90 }).decode(Buffer.from('{"ts":1767225600000,"rpm":300,"vab":120}'), 1767225600000).samples.length // 1
+ * @example createTelemetryDecoder({ retentionDays: 90 }).decode(Buffer.from('{"ts":1767225600000,"rpm":300,"vab":120}'), 1767225600000).samples.count // 1
  */
 export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOptions) {
   let nowMs = Date.now();
   const schema = telemetrySampleSchema(() => nowMs);
   const whole = (payload: string, payloadBytes: number, reason: string): DecodedTelemetry => ({
-    samples: [],
+    samples: EMPTY_BLOCK,
     quarantined: [{ sampleIndex: null, payload: boundText(payload, QUARANTINE_PAYLOAD_CHARS, payloadBytes), payloadBytes, reason }],
-    unknownFields: [],
+    unknownFields: NO_FIELDS,
   });
 
   function decode(payload: Uint8Array, receivedAtMs: number): DecodedTelemetry {
@@ -154,7 +152,7 @@ export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOption
     }
 
     const oldestMs = receivedAtMs - retentionDays * MS_PER_DAY;
-    const samples: TelemetrySample[] = [];
+    const samples = createSampleBlock(raws.length);
     const quarantined: QuarantineEntry[] = [];
     const unknown = new Set<string>();
     const seenTs = new Map<number, number>();
@@ -191,9 +189,9 @@ export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOption
       }
       seenTs.set(sample.ts, index);
       for (const field of result.unknownFields) unknown.add(field);
-      samples.push(sample);
+      appendSample(samples, sample);
     });
-    return { samples, quarantined, unknownFields: [...unknown] };
+    return { samples, quarantined, unknownFields: unknown.size > 0 ? [...unknown] : NO_FIELDS };
   }
 
   return { decode };

@@ -10,7 +10,8 @@ import type { Logger } from '../log/logger';
 import { registerComponent, type ComponentState } from '../server/registry';
 import { createBatcher, type BatcherCounters } from './batcher';
 import { openConnectionPool, type ConnectionState, type Delivery } from './connections';
-import { QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload } from './decode';
+import { QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload, type QuarantineEntry } from './decode';
+import { EMPTY_BLOCK } from './sample-block';
 import { runTelemetryMaintenance } from './maintenance';
 import { openIngestDatabase } from './sql';
 import { DEFAULT_SHARE_GROUP, parseUnitTopic } from './topics';
@@ -62,6 +63,8 @@ export interface IngesterState extends ComponentState {
   commitDelayMs?: number;
   lastBatch?: { samples: number; rows: number; ms: number; at: string };
   buffer: { samples: number; limit: number; fillPct: number };
+  /** This process's memory now and at its peak (sampled each second), MB. */
+  memory: { rssMb: number; heapUsedMb: number; peakRssMb: number; peakHeapUsedMb: number; peakExternalMb: number };
   retention: { days: number; lastRunAt?: string; droppedPartitions: number; lastError?: string };
 }
 
@@ -76,6 +79,7 @@ export interface Ingester {
 }
 
 const DAY_MS = 86_400_000;
+const NO_FIELDS: string[] = Object.freeze([]) as unknown as string[];
 
 /** The client id of an ingester that was given none: `millrace-ingest-<host>`. */
 export function defaultIngestClientId(): string {
@@ -140,15 +144,19 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
 
   const take = (delivery: Delivery): void | Promise<void> => {
     const topic = parseUnitTopic(delivery.topic);
+    // The text is kept only where a whole-message quarantine row may need it: not for a unit known here.
+    const known = topic.ok && directory.knows(topic.siteId, topic.unitId);
     const base = {
       topic: delivery.topic,
       receivedAtMs: delivery.receivedAtMs,
       retained: delivery.retain,
       payloadBytes: delivery.payload.byteLength,
-      preview: boundText(delivery.payload.subarray(0, QUARANTINE_PAYLOAD_CHARS).toString('utf8'), QUARANTINE_PAYLOAD_CHARS, delivery.payload.byteLength),
-      unknownFields: [] as string[],
-      samples: [],
-      quarantined: [],
+      preview: known
+        ? ''
+        : boundText(delivery.payload.subarray(0, QUARANTINE_PAYLOAD_CHARS).toString('utf8'), QUARANTINE_PAYLOAD_CHARS, delivery.payload.byteLength),
+      unknownFields: NO_FIELDS,
+      samples: EMPTY_BLOCK,
+      quarantined: [] as QuarantineEntry[],
     };
     let message: DecodedMessage;
     if (!topic.ok) {
@@ -184,7 +192,17 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
   ready.catch(() => {});
 
   const history: Array<{ at: number; samples: number; rows: number }> = [];
+  const memory = { rssMb: 0, heapUsedMb: 0, peakRssMb: 0, peakHeapUsedMb: 0, peakExternalMb: 0 };
+  const sampleMemory = () => {
+    const m = process.memoryUsage();
+    memory.rssMb = Math.round(m.rss / 1048576);
+    memory.heapUsedMb = Math.round(m.heapUsed / 1048576);
+    memory.peakRssMb = Math.max(memory.peakRssMb, memory.rssMb);
+    memory.peakHeapUsedMb = Math.max(memory.peakHeapUsedMb, memory.heapUsedMb);
+    memory.peakExternalMb = Math.max(memory.peakExternalMb, Math.round((m.external + m.arrayBuffers) / 1048576));
+  };
   const sampler = setInterval(() => {
+    sampleMemory();
     const c = batcher.state().counters;
     history.push({ at: Date.now(), samples: c.samplesIn, rows: c.rowsCommitted });
     while (history.length > 0 && history[0]!.at < Date.now() - RATE_WINDOW_MS - 1000) history.shift();
@@ -227,6 +245,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       commitDelayMs: b.lastBatch?.waitMs,
       lastBatch: b.lastBatch && { samples: b.lastBatch.samples, rows: b.lastBatch.rows, ms: b.lastBatch.ms, at: new Date(b.lastBatch.atMs).toISOString() },
       buffer: { samples: b.bufferedSamples, limit: b.bufferLimit, fillPct },
+      memory: { ...memory },
       retention: { ...retention },
     };
   };
@@ -258,7 +277,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       await batcher.stop({ drain: true });
       await pool.close();
       await finish();
-      log.info('ingester stopped', { counters: batcher.state().counters });
+      log.info('ingester stopped', { counters: batcher.state().counters, memory });
     },
     async abort() {
       if (stopped) return;

@@ -31,6 +31,7 @@ async function main(): Promise<number> {
     brokerUrl: config.MQTT_URL,
     mqtt5: true,
     clientId: config.INGEST_CLIENT_ID,
+    shareGroup: config.INGEST_SHARE_GROUP,
     connections: config.INGEST_CONNECTIONS,
     batchSamples: config.INGEST_BATCH_SAMPLES,
     batchMs: config.INGEST_BATCH_MS,

@@ -6,26 +6,31 @@
  * milliseconds (float8) and come back the same way.
  */
 import type { TelemetrySample } from '../contract/telemetry';
+import { VALUE_FIELDS, type ValueField } from './sample-block';
 import type { EnergyPoint, RollupDelta, Stat } from './rollups';
 import type { SqlRunner } from './sql';
 
-const SAMPLE_COLUMNS = [
-  ['rpm', 'rpm'],
-  ['hz', 'hz'],
-  ['vab', 'vab'],
-  ['vbc', 'vbc'],
-  ['vca', 'vca'],
-  ['ia', 'ia'],
-  ['ib', 'ib'],
-  ['ic', 'ic'],
-  ['kw', 'kw'],
-  ['statorC', 'stator_c'],
-  ['ambientC', 'ambient_c'],
-  ['windMs', 'wind_ms'],
-  ['airKgM3', 'air_kg_m3'],
-  ['flowM3s', 'flow_m3s'],
-  ['headM', 'head_m'],
-] as const satisfies ReadonlyArray<readonly [keyof TelemetrySample, string]>;
+/** Database column of each value field. */
+const COLUMN_OF: Record<ValueField, string> = {
+  rpm: 'rpm',
+  hz: 'hz',
+  vab: 'vab',
+  vbc: 'vbc',
+  vca: 'vca',
+  ia: 'ia',
+  ib: 'ib',
+  ic: 'ic',
+  kw: 'kw',
+  statorC: 'stator_c',
+  ambientC: 'ambient_c',
+  windMs: 'wind_ms',
+  airKgM3: 'air_kg_m3',
+  flowM3s: 'flow_m3s',
+  headM: 'head_m',
+};
+
+/** Value fields and their columns, in block order. */
+const SAMPLE_COLUMNS: ReadonlyArray<readonly [ValueField, string]> = VALUE_FIELDS.map((f) => [f, COLUMN_OF[f]]);
 
 const ms = (param: string) => `to_timestamp(${param} / 1000.0)`;
 const epochMs = (column: string) => `(extract(epoch from ${column}) * 1000)::float8`;
@@ -44,24 +49,32 @@ export interface SampleRow {
   sample: TelemetrySample;
 }
 
+/** Rows as whole columns: unit keys, times (epoch ms), then one array per value field (null where absent). */
+export interface SampleColumns {
+  unitKeys: number[];
+  ts: number[];
+  values: Array<Array<number | null>>;
+}
+
 /**
  * Inserts the rows, ignoring any (unit, ts) already stored; returns the keys
  * of the rows actually inserted.
  */
-export async function insertSampleRows({ tx, rows }: { tx: SqlRunner; rows: readonly SampleRow[] }): Promise<Array<{ unitKey: number; ts: number }>> {
-  if (rows.length === 0) return [];
-  const n = rows.length;
-  const keys = new Array<number>(n);
-  const ts = new Array<number>(n);
-  const columns = SAMPLE_COLUMNS.map(() => new Array<number | null>(n));
-  for (let i = 0; i < n; i++) {
-    const { unitKey, sample } = rows[i]!;
-    keys[i] = unitKey;
-    ts[i] = sample.ts;
-    for (let c = 0; c < SAMPLE_COLUMNS.length; c++) columns[c]![i] = (sample[SAMPLE_COLUMNS[c]![0]] as number | undefined) ?? null;
-  }
-  const inserted = await tx.query<{ unit_key: number; t: number }>(INSERT_SAMPLES, [keys, ts, ...columns]);
+export async function insertSampleColumns({ tx, columns }: { tx: SqlRunner; columns: SampleColumns }): Promise<Array<{ unitKey: number; ts: number }>> {
+  if (columns.unitKeys.length === 0) return [];
+  const inserted = await tx.query<{ unit_key: number; t: number }>(INSERT_SAMPLES, [columns.unitKeys, columns.ts, ...columns.values]);
   return inserted.map((r) => ({ unitKey: Number(r.unit_key), ts: Number(r.t) }));
+}
+
+/** {@link insertSampleColumns} for rows of sample objects (tools, tests, benchmarks). */
+export async function insertSampleRows({ tx, rows }: { tx: SqlRunner; rows: readonly SampleRow[] }): Promise<Array<{ unitKey: number; ts: number }>> {
+  const columns: SampleColumns = { unitKeys: [], ts: [], values: SAMPLE_COLUMNS.map(() => []) };
+  for (const { unitKey, sample } of rows) {
+    columns.unitKeys.push(unitKey);
+    columns.ts.push(sample.ts);
+    for (let c = 0; c < SAMPLE_COLUMNS.length; c++) columns.values[c]!.push(sample[SAMPLE_COLUMNS[c]![0]] ?? null);
+  }
+  return insertSampleColumns({ tx, columns });
 }
 
 /** Advisory lock space of the ingest transactions (any fixed number unique to millrace). */
@@ -83,39 +96,48 @@ export async function lockUnitKeys({ tx, unitKeys }: { tx: SqlRunner; unitKeys: 
   );
 }
 
-/** One unit's window of new samples with `kw`, epoch ms. */
+/** One unit's window of new samples, epoch ms. */
 export interface EnergyWindow {
   unitKey: number;
   fromMs: number;
   toMs: number;
 }
 
+/** What is stored of one unit in and around a window. */
+export interface StoredAround {
+  /** Stored samples with `kw`: the last within 10 minutes before the window, all inside, the first within 10 minutes after. */
+  energy: EnergyPoint[];
+  /** Times of every sample stored inside the window (with `kw` or not). */
+  existing: Set<number>;
+}
+
 /**
- * The stored samples with `kw` around and inside each window: the last within
- * 10 minutes before it, all inside, the first within 10 minutes after.
+ * Reads, for each window, the stored samples that the new ones may meet:
+ * those inside it (the new ones already stored are duplicates) and the
+ * neighbours with `kw` that the energy intervals at its edges start or end on.
  */
-export async function getEnergyNeighbours({
+export async function getStoredAround({
   tx,
   windows,
 }: {
   tx: SqlRunner;
   windows: readonly EnergyWindow[];
-}): Promise<Map<number, EnergyPoint[]>> {
-  const out = new Map<number, EnergyPoint[]>();
+}): Promise<Map<number, StoredAround>> {
+  const out = new Map<number, StoredAround>();
   if (windows.length === 0) return out;
-  const rows = await tx.query<{ k: number; t: number; kw: number }>(
-    `select w.k, ${epochMs('s.ts')} as t, s.kw::float8 as kw
+  const rows = await tx.query<{ k: number; t: number; kw: number | null; inside: boolean }>(
+    `select w.k, ${epochMs('s.ts')} as t, s.kw::float8 as kw, s.inside
      from unnest($1::int4[], $2::float8[], $3::float8[]) as w(k, lo, hi)
      cross join lateral (
-       (select p.ts, p.kw from telemetry_samples p
+       (select p.ts, p.kw, false as inside from telemetry_samples p
          where p.unit_key = w.k and p.kw is not null
            and p.ts < ${ms('w.lo')} and p.ts >= ${ms('(w.lo - 600000)')}
          order by p.ts desc limit 1)
        union all
-       (select p.ts, p.kw from telemetry_samples p
-         where p.unit_key = w.k and p.kw is not null and p.ts >= ${ms('w.lo')} and p.ts <= ${ms('w.hi')})
+       (select p.ts, p.kw, true as inside from telemetry_samples p
+         where p.unit_key = w.k and p.ts >= ${ms('w.lo')} and p.ts <= ${ms('w.hi')})
        union all
-       (select p.ts, p.kw from telemetry_samples p
+       (select p.ts, p.kw, false as inside from telemetry_samples p
          where p.unit_key = w.k and p.kw is not null
            and p.ts > ${ms('w.hi')} and p.ts <= ${ms('(w.hi + 600000)')}
          order by p.ts asc limit 1)
@@ -124,11 +146,55 @@ export async function getEnergyNeighbours({
   );
   for (const r of rows) {
     const key = Number(r.k);
-    let list = out.get(key);
-    if (!list) out.set(key, (list = []));
-    list.push({ ts: Number(r.t), kw: Number(r.kw) });
+    let entry = out.get(key);
+    if (!entry) out.set(key, (entry = { energy: [], existing: new Set() }));
+    const ts = Number(r.t);
+    if (r.inside) entry.existing.add(ts);
+    if (r.kw !== null) entry.energy.push({ ts, kw: Number(r.kw) });
   }
   return out;
+}
+
+const COPY_SAMPLES = `copy telemetry_samples (unit_key, ts, ${SAMPLE_COLUMNS.map(([, c]) => c).join(', ')}) from stdin`;
+
+const INSERT_NEW_SAMPLES = INSERT_SAMPLES.replace(/\nreturning .*$/s, '');
+
+/**
+ * Writes rows known not to be stored yet (the caller holds their units'
+ * locks and has read what exists): COPY on PostgreSQL, an unnest insert on
+ * PGlite. Throws when a row turns out to exist after all.
+ */
+export async function writeNewSampleColumns({ tx, columns }: { tx: SqlRunner; columns: SampleColumns }): Promise<void> {
+  const n = columns.unitKeys.length;
+  if (n === 0) return;
+  if (tx.copyIn) {
+    await tx.copyIn(COPY_SAMPLES, copyText(columns));
+    return;
+  }
+  const count = tx.command ? await tx.command(INSERT_NEW_SAMPLES, [columns.unitKeys, columns.ts, ...columns.values]) : n;
+  if (count !== n) {
+    throw Object.assign(new Error(`${n - count} of ${n} rows were stored meanwhile by another writer`), { code: '40001' });
+  }
+}
+
+/** COPY text of the columns, in chunks of about 256 kB. */
+function* copyText(columns: SampleColumns): Generator<string> {
+  const n = columns.unitKeys.length;
+  const width = columns.values.length;
+  let text = '';
+  for (let r = 0; r < n; r++) {
+    text += `${columns.unitKeys[r]}\t${new Date(columns.ts[r]!).toISOString()}`;
+    for (let c = 0; c < width; c++) {
+      const v = columns.values[c]![r];
+      text += v === null || v === undefined ? '\t\\N' : `\t${v}`;
+    }
+    text += '\n';
+    if (text.length > 1 << 18) {
+      yield text;
+      text = '';
+    }
+  }
+  if (text) yield text;
 }
 
 const STATS = ['rpm', 'vll', 'amps', 'kw', 'statorC', 'resource'] as const;

@@ -15,6 +15,7 @@
  */
 import type { TelemetrySample } from '../contract/telemetry';
 import type { UnitKind } from '../contract/nameplate';
+import { FIELD_INDEX, BLOCK_WIDTH, type SampleBlock } from './sample-block';
 
 /** Length of the short rollup bucket, ms (10 minutes). */
 export const TEN_MINUTES_MS = 600_000;
@@ -101,6 +102,24 @@ export function rollupSampleOf(sample: TelemetrySample, kind: UnitKind): RollupS
   };
 }
 
+/** {@link rollupSampleOf} for sample `i` of a block. */
+export function rollupSampleFromBlock(block: SampleBlock, i: number, kind: UnitKind): RollupSample {
+  const row = i * BLOCK_WIDTH;
+  const v = (index: number) => {
+    const x = block.values[row + index]!;
+    return Number.isNaN(x) ? undefined : f32(x);
+  };
+  return {
+    ts: block.ts[i]!,
+    rpm: v(FIELD_INDEX.rpm)!,
+    vll: mean([v(FIELD_INDEX.vab), v(FIELD_INDEX.vbc), v(FIELD_INDEX.vca)])!,
+    amps: mean([v(FIELD_INDEX.ia), v(FIELD_INDEX.ib), v(FIELD_INDEX.ic)]),
+    kw: v(FIELD_INDEX.kw),
+    statorC: v(FIELD_INDEX.statorC),
+    resource: v(kind === 'wind' ? FIELD_INDEX.windMs : FIELD_INDEX.flowM3s),
+  };
+}
+
 function emptyStat(): Stat {
   return { sum: 0, count: 0 };
 }
@@ -151,17 +170,12 @@ function sortedUnique(points: EnergyPoint[]): EnergyPoint[] {
   return out;
 }
 
-/** Intervals (consecutive pairs no more than the gap limit apart) of a sorted series, keyed "t0:t1". */
-function intervalsOf(series: EnergyPoint[]): Map<string, [EnergyPoint, EnergyPoint]> {
-  const out = new Map<string, [EnergyPoint, EnergyPoint]>();
-  for (let i = 1; i < series.length; i++) {
-    const a = series[i - 1]!;
-    const b = series[i]!;
-    const dt = b.ts - a.ts;
-    if (dt > 0 && dt <= MAX_COVERED_INTERVAL_MS) out.set(`${a.ts}:${b.ts}`, [a, b]);
-  }
-  return out;
+/** A point of the merged series, marked when it is new. */
+interface MergedPoint extends EnergyPoint {
+  fresh: boolean;
 }
+
+const counts = (a: EnergyPoint, b: EnergyPoint) => b.ts - a.ts > 0 && b.ts - a.ts <= MAX_COVERED_INTERVAL_MS;
 
 /**
  * Adds `sign` × the interval (a, b) to the ten-minute buckets it spans, in
@@ -193,8 +207,8 @@ export interface UnitRollupInput {
   inserted: readonly RollupSample[];
   /**
    * Stored samples with `kw` next to the inserted ones, read before the
-   * insert: the last within 10 minutes before the earliest inserted, every
-   * one between the earliest and the latest, the first within 10 minutes after.
+   * insert: the last within 10 minutes before a window holding every
+   * inserted sample, every one inside it, the first within 10 minutes after.
    */
   stored: readonly EnergyPoint[];
 }
@@ -237,15 +251,40 @@ export function computeRollupDeltas({ unitKey, inserted, stored }: UnitRollupInp
     addStat(delta.resource, s.resource);
   }
 
-  const newPoints: EnergyPoint[] = [];
-  for (const s of inserted) if (s.kw !== undefined) newPoints.push({ ts: s.ts, kw: s.kw });
-  if (newPoints.length > 0) {
-    const before = sortedUnique(stored.map((p) => ({ ts: p.ts, kw: f32(p.kw) })));
-    const after = sortedUnique([...before, ...newPoints]);
-    const old = intervalsOf(before);
-    const now = intervalsOf(after);
-    for (const [key, [a, b]] of now) if (!old.has(key)) addInterval(a, b, 1, bucketOf);
-    for (const [key, [a, b]] of old) if (!now.has(key)) addInterval(a, b, -1, bucketOf);
+  const fresh: MergedPoint[] = [];
+  for (const s of inserted) if (s.kw !== undefined) fresh.push({ ts: s.ts, kw: s.kw, fresh: true });
+  if (fresh.length > 0) {
+    // The stored series and the series with the new points merged in differ only in
+    // intervals that touch a new point (added) and the stored intervals a new point
+    // now splits (removed); every other interval is in both and changes nothing.
+    const old: MergedPoint[] = sortedUnique(stored.map((p) => ({ ts: p.ts, kw: f32(p.kw) }))).map((p) => ({ ...p, fresh: false }));
+    fresh.sort((a, b) => a.ts - b.ts);
+    const merged: MergedPoint[] = [];
+    for (let i = 0, j = 0; i < old.length || j < fresh.length; ) {
+      const o = old[i];
+      const n = fresh[j];
+      if (n === undefined || (o !== undefined && o.ts <= n.ts)) {
+        // A stored point and a new one at the same time: the insert skipped it, keep the stored.
+        if (n !== undefined && o!.ts === n.ts) j++;
+        merged.push(o!);
+        i++;
+      } else {
+        if (merged.length === 0 || merged[merged.length - 1]!.ts !== n.ts) merged.push(n);
+        j++;
+      }
+    }
+    let lastOld: MergedPoint | undefined;
+    let splitSinceLastOld = false;
+    for (let k = 0; k < merged.length; k++) {
+      const p = merged[k]!;
+      const before = merged[k - 1];
+      if (before && (before.fresh || p.fresh) && counts(before, p)) addInterval(before, p, 1, bucketOf);
+      if (!p.fresh) {
+        if (lastOld && splitSinceLastOld && counts(lastOld, p)) addInterval(lastOld, p, -1, bucketOf);
+        lastOld = p;
+        splitSinceLastOld = false;
+      } else splitSinceLastOld = true;
+    }
   }
 
   const daily = new Map<number, RollupDelta>();

@@ -18,6 +18,10 @@ import type { DatabaseHandle, Db } from '../../db/client';
 /** Runs one statement and returns its rows. */
 export interface SqlRunner {
   query<T = Record<string, unknown>>(text: string, params?: readonly unknown[]): Promise<T[]>;
+  /** Runs one statement and returns the number of rows it affected (ingest transactions). */
+  command?(text: string, params?: readonly unknown[]): Promise<number>;
+  /** Streams COPY ... FROM STDIN text (PostgreSQL ingest transactions only). */
+  copyIn?(text: string, chunks: Iterable<string>): Promise<void>;
 }
 
 /** The ingester's way into the database. */
@@ -39,6 +43,27 @@ function runnerOf(sql: postgres.Sql | postgres.ReservedSql): SqlRunner {
   return {
     query: async <T>(text: string, params: readonly unknown[] = []) =>
       (await sql.unsafe(text, params as never[], { prepare: true })) as unknown as T[],
+    command: async (text: string, params: readonly unknown[] = []) => (await sql.unsafe(text, params as never[], { prepare: true })).count,
+    async copyIn(text: string, chunks: Iterable<string>) {
+      const stream = await sql.unsafe(text).writable();
+      await new Promise<void>((resolve, reject) => {
+        stream.once('error', reject);
+        stream.once('finish', () => resolve());
+        (async () => {
+          for (const chunk of chunks) {
+            if (!stream.write(chunk)) await new Promise((r) => stream.once('drain', r));
+          }
+          stream.end();
+        })().catch(reject);
+      });
+    },
+  };
+}
+
+function runnerOfPglite(db: { query<T>(text: string, params?: unknown[]): Promise<{ rows: T[]; affectedRows?: number }> }): SqlRunner {
+  return {
+    query: async <T>(text: string, params: readonly unknown[] = []) => (await db.query<T>(text, params as unknown[])).rows,
+    command: async (text: string, params: readonly unknown[] = []) => (await db.query(text, params as unknown[])).affectedRows ?? 0,
   };
 }
 
@@ -47,7 +72,7 @@ export function sqlRunner(handle: DatabaseHandle): SqlRunner {
   if (handle.sql) return runnerOf(handle.sql);
   const pglite = handle.pglite;
   if (!pglite) throw new Error(`database handle ${handle.location} has neither a postgres-js client nor a PGlite instance`);
-  return { query: async <T>(text: string, params: readonly unknown[] = []) => (await pglite.query<T>(text, params as unknown[])).rows };
+  return runnerOfPglite(pglite);
 }
 
 /**
@@ -58,9 +83,7 @@ export async function inTransaction<T>(handle: DatabaseHandle, fn: (tx: SqlRunne
   if (handle.sql) return (await handle.sql.begin((tx) => fn(runnerOf(tx as unknown as postgres.Sql)))) as T;
   const pglite = handle.pglite;
   if (!pglite) throw new Error(`database handle ${handle.location} has neither a postgres-js client nor a PGlite instance`);
-  return pglite.transaction((tx) =>
-    fn({ query: async <R>(text: string, params: readonly unknown[] = []) => (await tx.query<R>(text, params as unknown[])).rows }),
-  );
+  return pglite.transaction((tx) => fn(runnerOfPglite(tx)));
 }
 
 /** The ingester's own access to the handle's database. */
@@ -71,12 +94,9 @@ export async function openIngestDatabase(handle: DatabaseHandle): Promise<Ingest
     return {
       backend: 'pglite',
       location: handle.location,
-      runner: { query: async <T>(text: string, params: readonly unknown[] = []) => (await pglite.query<T>(text, params as unknown[])).rows },
+      runner: runnerOfPglite(pglite),
       db: () => handle.db,
-      transaction: (fn) =>
-        pglite.transaction((tx) =>
-          fn({ query: async <R>(text: string, params: readonly unknown[] = []) => (await tx.query<R>(text, params as unknown[])).rows }),
-        ),
+      transaction: (fn) => pglite.transaction((tx) => fn(runnerOfPglite(tx))),
       reset: () => {},
       close: async () => {},
     };

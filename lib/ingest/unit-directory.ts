@@ -18,6 +18,8 @@ export interface UnitDirectory {
   resolve(pairs: ReadonlyArray<{ siteId: string; unitId: string }>): Promise<Map<string, UnitResolution>>;
   /** Number of units known. */
   size(): number;
+  /** True when the unit is known here, under that site (no database read). */
+  knows(siteId: string, unitId: string): boolean;
 }
 
 /** The key of a (site, unit) pair in the map `resolve` returns. */
@@ -32,6 +34,7 @@ export function createUnitDirectory({ db, now = Date.now }: { db: SqlRunner; now
 
   return {
     size: () => byId.size,
+    knows: (siteId, unitId) => byId.get(unitId)?.siteId === siteId,
     async resolve(pairs) {
       if (now() - loadedAt > DIRECTORY_REFRESH_MS) {
         const all = await getUnitEntries({ db });

@@ -16,6 +16,7 @@ import { integrateIntoBuckets } from '../../lib/energy/integrate';
 import { openIngestDatabase, type IngestDatabase } from '../../lib/ingest/sql';
 import { createUnitDirectory } from '../../lib/ingest/unit-directory';
 import { writeBatch, type DecodedMessage } from '../../lib/ingest/writer';
+import { sampleBlockOf } from '../../lib/ingest/sample-block';
 import { createPostgresDatabase } from '../support/backend';
 import { adminDatabaseUrl, queryRows, registerFleet, testFleet, testTag, waitFor } from '../support/ingest';
 
@@ -32,7 +33,7 @@ function message(samples: Array<{ ts: number; kw: number }>): DecodedMessage {
     kind: 'telemetry',
     receivedAtMs: Date.now(),
     retained: false,
-    samples: samples.map((s) => ({ ts: s.ts, rpm: 250, vab: 230, kw: s.kw })),
+    samples: sampleBlockOf(samples.map((s) => ({ ts: s.ts, rpm: 250, vab: 230, kw: s.kw }))),
     quarantined: [],
     unknownFields: [],
     preview: '',

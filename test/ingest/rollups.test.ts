@@ -17,7 +17,7 @@ const windSite = fleet.sites[0]!.id;
 const hydroSite = fleet.sites[1]!.id;
 const TEN_MIN = 600_000;
 // Whole days back, so the series crosses midnight and the daily buckets split.
-const start = Math.floor(Date.now() / 86_400_000) * 86_400_000 - 86_400_000 + 23 * 3_600_000;
+const start = Math.floor(Date.now() / 86_400_000) * 86_400_000 - 2 * 86_400_000 + 23 * 3_600_000;
 
 /** A deterministic series for unit `u`: mostly 10 s apart, some gaps, some samples without kw. */
 function series(u: number) {
@@ -96,9 +96,14 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
     messages.push({ topic: `millrace/${hydroSite}/${fleet.units[3]!.id}/presence`, payload: 'offline', retain: true });
     await publisher.publishAll(messages, { window: 50 });
     await publisher.close();
+    let have = 0;
     await waitFor('all samples committed', async () => {
       const [row] = await queryRows<{ n: number }>(db.handle, 'select count(*)::int as n from telemetry_samples');
-      return Number(row!.n) >= expectedRows && ingester.state().buffer.samples === 0;
+      have = Number(row!.n);
+      return have >= expectedRows && ingester.state().buffer.samples === 0;
+    }).catch(async (error: Error) => {
+      const reasons = await queryRows<{ reason: string; n: number }>(db.handle, 'select reason, count(*)::int as n from quarantine group by 1 order by 2 desc limit 3');
+      throw new Error(`${error.message}: ${have} of ${expectedRows} rows; ${JSON.stringify(ingester.state().counters)}; quarantined: ${JSON.stringify(reasons)}`);
     });
     await waitFor('presence committed', () => ingester.state().counters.presenceUpdates >= 2);
   });
