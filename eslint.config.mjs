@@ -1,7 +1,7 @@
 import nextVitals from 'eslint-config-next/core-web-vitals';
 import tseslint from 'typescript-eslint';
 
-export default [
+const config = [
   { ignores: ['node_modules/**', '.next/**', 'data/**', 'scratch/**', 'next-env.d.ts', 'db/migrations/**'] },
   ...nextVitals,
   ...tseslint.configs.recommended,
@@ -13,3 +13,5 @@ export default [
     },
   },
 ];
+
+export default config;

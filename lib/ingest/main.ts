@@ -2,12 +2,14 @@
  * `npm run ingest`: the standalone ingester, plain Node. Reads the
  * configuration, opens the database, subscribes to MQTT_URL (an MQTT 5
  * broker such as Mosquitto 2) and runs until SIGINT or SIGTERM, when it
- * drains: commits what it holds, acknowledges it, disconnects, exits.
+ * drains: commits what it holds, acknowledges it, disconnects, exits. The
+ * live diagnosis runs in this process too.
  */
 import { openDatabase } from '../../db/client';
 import { getConfig } from '../config/env';
 import { createLogger } from '../log/logger';
 import { startIngester } from './ingester';
+import { startLiveDiagnosis } from '../diagnosis/live';
 
 async function main(): Promise<number> {
   let config;
@@ -41,7 +43,16 @@ async function main(): Promise<number> {
     retentionDays: config.RETENTION_DAYS,
     log,
   });
+  // The live diagnosis runs beside the ingester in production (docker-compose
+  // has no service of its own for it): it reads what the ingester committed.
+  const stopDiagnosis = startLiveDiagnosis({
+    db: handle.db,
+    intervalS: config.DIAGNOSIS_INTERVAL_S,
+    windowHours: config.DIAGNOSIS_WINDOW_HOURS,
+    log: log.child('diagnosis'),
+  });
   ingester.ready().catch(async () => {
+    await stopDiagnosis();
     // The pool logged why (a refused subscription); nothing can be ingested.
     await ingester.abort();
     await handle.close();
@@ -57,8 +68,8 @@ async function main(): Promise<number> {
       }
       stopping = true;
       log.info('draining before exit', { signal });
-      void ingester
-        .stop()
+      void stopDiagnosis()
+        .then(() => ingester.stop())
         .then(() => handle.close())
         .then(
           () => resolve(0),
