@@ -221,6 +221,10 @@ export function spawnIngester(env: Record<string, string>) {
   child.stdout!.on('data', (chunk: Buffer) => (output += chunk.toString()));
   child.stderr!.on('data', (chunk: Buffer) => (output += chunk.toString()));
   const exited = new Promise<number | null>((resolve) => child.once('exit', (code, signal) => resolve(code ?? (signal ? -1 : null))));
+  // A test that fails before stopping it must not leave the ingester running.
+  const killOnExit = () => child.kill('SIGKILL');
+  process.once('exit', killOnExit);
+  void exited.then(() => process.off('exit', killOnExit));
   return {
     pid: child.pid,
     output: () => output,

@@ -96,6 +96,11 @@ export async function startMosquitto(): Promise<TestMosquitto> {
     const out = openSync(logPath, 'a');
     child = spawn(MOSQUITTO_BIN, ['-c', confPath], { stdio: ['ignore', out, out] });
     closeSync(out);
+    const started = child;
+    // A test that fails before dispose() must not leave its broker running.
+    const killOnExit = () => started.kill('SIGKILL');
+    process.once('exit', killOnExit);
+    started.once('exit', () => process.off('exit', killOnExit));
     const exited = new Promise<never>((_, reject) =>
       child!.once('exit', (code) => reject(new Error(`mosquitto exited with ${code}: ${readFileSync(logPath, 'utf8').slice(-2000)}`))),
     );
