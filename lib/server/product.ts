@@ -51,6 +51,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     brokerUrl,
     mqtt5,
     clientId: config.INGEST_CLIENT_ID,
+    shareGroup: config.INGEST_SHARE_GROUP,
     connections: config.INGEST_CONNECTIONS,
     batchSamples: config.INGEST_BATCH_SAMPLES,
     batchMs: config.INGEST_BATCH_MS,
