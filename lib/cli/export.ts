@@ -12,31 +12,12 @@
 import { once } from 'node:events';
 import type { DatabaseHandle } from '../../db/client';
 import { SLUG } from '../contract/nameplate';
-import { TELEMETRY_FIELDS, describeValue, parseTimestampMs } from '../contract/telemetry';
+import { TELEMETRY_FIELDS, VALUE_FIELDS, columnOfField, describeValue, parseTimestampMs } from '../contract/telemetry';
 import { AppError } from '../errors/app-error';
 import { parseOptions } from './args';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';
 
-/** Database column of each telemetry field after `ts`, in the CSV order. */
-const COLUMNS: Record<Exclude<(typeof TELEMETRY_FIELDS)[number], 'ts'>, string> = {
-  rpm: 'rpm',
-  hz: 'hz',
-  vab: 'vab',
-  vbc: 'vbc',
-  vca: 'vca',
-  ia: 'ia',
-  ib: 'ib',
-  ic: 'ic',
-  kw: 'kw',
-  statorC: 'stator_c',
-  ambientC: 'ambient_c',
-  windMs: 'wind_ms',
-  airKgM3: 'air_kg_m3',
-  flowM3s: 'flow_m3s',
-  headM: 'head_m',
-};
-const VALUE_FIELDS = TELEMETRY_FIELDS.filter((f) => f !== 'ts') as Array<keyof typeof COLUMNS>;
 
 /** Rows a page or a cursor step holds. */
 export const EXPORT_PAGE_ROWS = 5000;
@@ -67,7 +48,7 @@ function csvLine(row: Row): string {
   return `${line}\n`;
 }
 
-const SELECT = `select (extract(epoch from ts) * 1000)::float8 as t, ${VALUE_FIELDS.map((f) => `${COLUMNS[f]} as "${f}"`).join(', ')}
+const SELECT = `select (extract(epoch from ts) * 1000)::float8 as t, ${VALUE_FIELDS.map((f) => `${columnOfField(f)} as "${f}"`).join(', ')}
   from telemetry_samples where unit_key = $1 and ts >= to_timestamp($2 / 1000.0) and ts < to_timestamp($3 / 1000.0)`;
 
 /** The unit's rows in [fromMs, toMs), in time order, a page at a time. */

@@ -27,6 +27,16 @@ export const TELEMETRY_FIELDS = [
 
 export type TelemetryField = (typeof TELEMETRY_FIELDS)[number];
 
+/** Every field but `ts`: the measured values of a sample, in CSV and column order. */
+export const VALUE_FIELDS = TELEMETRY_FIELDS.filter((f): f is Exclude<TelemetryField, 'ts'> => f !== 'ts');
+
+export type ValueField = Exclude<TelemetryField, 'ts'>;
+
+/** The snake_case database column of a field (`statorC` -> `stator_c`, `airKgM3` -> `air_kg_m3`). */
+export function columnOfField(field: TelemetryField): string {
+  return field.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`);
+}
+
 /** Fields every sample must carry. */
 export const REQUIRED_TELEMETRY_FIELDS = ['ts', 'rpm', 'vab'] as const;
 

@@ -6,31 +6,13 @@
  * milliseconds (float8) and come back the same way.
  */
 import type { TelemetrySample } from '../contract/telemetry';
-import { VALUE_FIELDS, type ValueField } from './sample-block';
+import { VALUE_FIELDS, columnOfField, type ValueField } from '../contract/telemetry';
 import type { EnergyPoint, RollupDelta, Stat } from './rollups';
 import type { SqlRunner } from './sql';
 
-/** Database column of each value field. */
-const COLUMN_OF: Record<ValueField, string> = {
-  rpm: 'rpm',
-  hz: 'hz',
-  vab: 'vab',
-  vbc: 'vbc',
-  vca: 'vca',
-  ia: 'ia',
-  ib: 'ib',
-  ic: 'ic',
-  kw: 'kw',
-  statorC: 'stator_c',
-  ambientC: 'ambient_c',
-  windMs: 'wind_ms',
-  airKgM3: 'air_kg_m3',
-  flowM3s: 'flow_m3s',
-  headM: 'head_m',
-};
 
 /** Value fields and their columns, in block order. */
-const SAMPLE_COLUMNS: ReadonlyArray<readonly [ValueField, string]> = VALUE_FIELDS.map((f) => [f, COLUMN_OF[f]]);
+const SAMPLE_COLUMNS: ReadonlyArray<readonly [ValueField, string]> = VALUE_FIELDS.map((f) => [f, columnOfField(f)]);
 
 const ms = (param: string) => `to_timestamp(${param} / 1000.0)`;
 const epochMs = (column: string) => `(extract(epoch from ${column}) * 1000)::float8`;

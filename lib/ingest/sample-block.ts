@@ -5,28 +5,9 @@
  * the device's double (its shortest decimal is what COPY sends); the `real`
  * columns round them to float4, and the rollups do the same.
  */
-import type { TelemetrySample } from '../contract/telemetry';
+import { VALUE_FIELDS, type TelemetrySample, type ValueField } from '../contract/telemetry';
 
-/** The value fields of a sample, in column order (every field but `ts`). */
-export const VALUE_FIELDS = [
-  'rpm',
-  'hz',
-  'vab',
-  'vbc',
-  'vca',
-  'ia',
-  'ib',
-  'ic',
-  'kw',
-  'statorC',
-  'ambientC',
-  'windMs',
-  'airKgM3',
-  'flowM3s',
-  'headM',
-] as const satisfies ReadonlyArray<Exclude<keyof TelemetrySample, 'ts'>>;
-
-export type ValueField = (typeof VALUE_FIELDS)[number];
+export { VALUE_FIELDS, type ValueField };
 
 /** Position of each field in a row of the block. */
 export const FIELD_INDEX = Object.fromEntries(VALUE_FIELDS.map((f, i) => [f, i])) as Record<ValueField, number>;
