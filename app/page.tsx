@@ -74,6 +74,21 @@ export default async function FleetPage() {
           </section>
         ))
       )}
+      {fleet.quarantine.total > 0 ? (
+        <section className="set-aside" data-testid="set-aside">
+          <h2>
+            Telemetry set aside <span className="muted">{fleet.quarantine.lastDay} in the last day, {fleet.quarantine.total} in all</span>
+          </h2>
+          <p className="note">Samples that failed validation are kept with the reason, not stored as telemetry. Newest first:</p>
+          <ul>
+            {fleet.quarantine.recent.map((q, i) => (
+              <li key={i}>
+                <span className="muted">{ago(q.receivedAt, now)}</span> <code>{q.topic}</code> {q.reason}
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
       <footer className="caution">
         A permanent-magnet generator makes voltage whenever its shaft turns, even when disconnected. Before anyone works on a
         unit: stop and lock the rotor, isolate and prove dead, following the manufacturer&apos;s procedure, local electrical

@@ -3,13 +3,15 @@
  */
 import { getDatabase } from '../../db/client';
 import { getComponentStates } from '../server/registry';
-import { getFleetOverview, type FleetOverviewSite } from './queries';
+import { getFleetOverview, getQuarantineSummary, type FleetOverviewSite, type QuarantineSummary } from './queries';
 
 export interface FleetOverview {
   sites: FleetOverviewSite[];
   unitCount: number;
   onlineCount: number;
   attentionCount: number;
+  /** Telemetry set aside as invalid, with the newest reasons. */
+  quarantine: QuarantineSummary;
   /** What the demo fleet is doing, or undefined when it is not part of this process. */
   demo?: { status: string; phase?: string };
 }
@@ -17,7 +19,7 @@ export interface FleetOverview {
 /** Sites, units and their latest state, with counts for the summary line. */
 export async function loadFleetOverview(): Promise<FleetOverview> {
   const { db } = await getDatabase();
-  const sites = await getFleetOverview({ db });
+  const [sites, quarantine] = await Promise.all([getFleetOverview({ db }), getQuarantineSummary({ db })]);
   const units = sites.flatMap((s) => s.units);
   const states = await getComponentStates();
   const demo = states.demo as { status: string; phase?: string } | undefined;
@@ -25,6 +27,7 @@ export async function loadFleetOverview(): Promise<FleetOverview> {
     sites,
     unitCount: units.length,
     onlineCount: units.filter((u) => u.presence === 'online').length,
+    quarantine,
     attentionCount: units.filter((u) => u.verdict !== null && u.verdict !== 'healthy' && u.verdict !== 'insufficient-data').length,
     demo: demo ? { status: demo.status, phase: demo.phase } : undefined,
   };

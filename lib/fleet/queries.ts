@@ -1,9 +1,9 @@
 /**
  * Data access for sites and units.
  */
-import { asc, eq, sql } from 'drizzle-orm';
+import { asc, desc, eq, sql } from 'drizzle-orm';
 import type { Db } from '../../db/client';
-import { sites, units, unitStatus, unitHealth, type SiteRow, type UnitRow } from '../../db/schema';
+import { quarantine, sites, units, unitStatus, unitHealth, type SiteRow, type UnitRow } from '../../db/schema';
 import type { Fleet, Nameplate } from '../contract/nameplate';
 
 /** Nameplate fields as unit columns. */
@@ -181,4 +181,26 @@ export async function getFleetOverview({ db }: { db: Db }): Promise<FleetOvervie
       .filter((u) => u.siteId === site.id)
       .map(({ siteId: _s, ...u }) => u),
   }));
+}
+
+export interface QuarantineSummary {
+  total: number;
+  lastDay: number;
+  recent: Array<{ receivedAt: Date; topic: string; reason: string }>;
+}
+
+/** How much telemetry was set aside as invalid, and the newest reasons, for the operator. */
+export async function getQuarantineSummary({ db, recentLimit = 5 }: { db: Db; recentLimit?: number }): Promise<QuarantineSummary> {
+  const [counts] = await db
+    .select({
+      total: sql<number>`count(*)::int`,
+      lastDay: sql<number>`(count(*) filter (where ${quarantine.receivedAt} > now() - interval '1 day'))::int`,
+    })
+    .from(quarantine);
+  const recent = await db
+    .select({ receivedAt: quarantine.receivedAt, topic: quarantine.topic, reason: quarantine.reason })
+    .from(quarantine)
+    .orderBy(desc(quarantine.id))
+    .limit(recentLimit);
+  return { total: counts?.total ?? 0, lastDay: counts?.lastDay ?? 0, recent };
 }

@@ -5,6 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { eventually, startProductProcess, type RunningProduct } from '../support/product';
 import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
+import mqtt from 'mqtt';
 
 // `npm start` as a user runs it: the build when needed, then the whole product
 // in one process. With the demo fleet on, telemetry flows from the simulated
@@ -93,5 +94,22 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
     mkdirSync('test-results', { recursive: true });
     await page.screenshot({ path: `test-results/fleet-${realDatabaseUrl ? 'postgres' : 'pglite'}.png`, fullPage: true });
     await page.close();
+  });
+
+  it('shows an operator a bad message set aside, with its reason', async () => {
+    const brokerUrl = product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`;
+    const client = await mqtt.connectAsync(brokerUrl, { clientId: `bad-device-${product.port}` });
+    await client.publishAsync('millrace/ravenscarp-moor/rv-01/telemetry', JSON.stringify({ ts: Date.now(), rpm: 200, vab: 'abc' }), { qos: 1 });
+    await client.endAsync();
+    const html = await eventually(
+      async () => {
+        const text = await (await fetch(product.url)).text();
+        return text.includes('vab: expected a number of volts') ? text : undefined;
+      },
+      30_000,
+      'the bad sample to show as set aside',
+    );
+    expect(html).toContain('Telemetry set aside');
+    expect(html).toContain('millrace/ravenscarp-moor/rv-01/telemetry');
   });
 });
