@@ -58,14 +58,14 @@ export function migrationsFolder(): string {
 /** Months of partitions made ahead of the current one. */
 export const PARTITION_MONTHS_AHEAD = 3;
 
-/** The URL without its password, fit for a log line. */
+/** A database or broker URL without its password, fit for a log line. */
 export function redactUrl(url: string): string {
   try {
     const u = new URL(url);
     if (u.password) u.password = '***';
     return u.toString();
   } catch {
-    return 'postgres://(unparsable URL)';
+    return '(unparsable URL)';
   }
 }
 

@@ -2,7 +2,7 @@
  * The fleet list of the home page, read from this process's database.
  */
 import { getDatabase } from '../../db/client';
-import { getComponentStates } from '../server/registry';
+import { getComponentState } from '../server/registry';
 import { getFleetOverview, getQuarantineSummary, type FleetOverviewSite, type QuarantineSummary } from './queries';
 
 export interface FleetOverview {
@@ -21,8 +21,8 @@ export async function loadFleetOverview(): Promise<FleetOverview> {
   const { db } = await getDatabase();
   const [sites, quarantine] = await Promise.all([getFleetOverview({ db }), getQuarantineSummary({ db })]);
   const units = sites.flatMap((s) => s.units);
-  const states = await getComponentStates();
-  const demo = states.demo as { status: string; phase?: string } | undefined;
+  // Only the demo fleet's state is shown here; the other parts are for /api/health.
+  const demo = (await getComponentState('demo')) as { status: string; phase?: string } | undefined;
   return {
     sites,
     unitCount: units.length,

@@ -11,7 +11,7 @@ import { sql } from 'drizzle-orm';
 import { loadConfig, type Config } from '../config/env';
 import { AppError } from '../errors/app-error';
 import { createLogger, type Logger } from '../log/logger';
-import { getDatabase, closeDatabase, rowsOf, type DatabaseHandle } from '../../db/client';
+import { getDatabase, closeDatabase, redactUrl, rowsOf, type DatabaseHandle } from '../../db/client';
 import { registerComponent } from './registry';
 import { startWebServer } from './next-app';
 
@@ -42,7 +42,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     brokerUrl = broker.url;
     mqtt5 = false;
   } else {
-    registerComponent('broker', { state: () => ({ status: 'ok', embedded: false, url: redactMqtt(config.MQTT_URL!) }) });
+    registerComponent('broker', { state: () => ({ status: 'ok', embedded: false, url: redactUrl(config.MQTT_URL!) }) });
   }
 
   const { startIngester } = await import('../ingest/ingester');
@@ -106,15 +106,6 @@ async function hasSamples(handle: DatabaseHandle): Promise<boolean> {
   return rows[0]?.has === true;
 }
 
-function redactMqtt(url: string): string {
-  try {
-    const u = new URL(url);
-    if (u.password) u.password = '***';
-    return u.toString();
-  } catch {
-    return 'mqtt://(unparsable URL)';
-  }
-}
 
 /** Starts the product; resolves once it serves. Returns a function that stops it. */
 export async function startProduct({ role, env = process.env }: { role: 'all' | 'web'; env?: NodeJS.ProcessEnv }) {

@@ -35,12 +35,20 @@ export function unregisterComponent(name: string): void {
 /** The state of every registered component, by name. */
 export async function getComponentStates(): Promise<Record<string, ComponentState>> {
   const out: Record<string, ComponentState> = {};
-  for (const [name, component] of registry()) {
-    try {
-      out[name] = await component.state();
-    } catch (error) {
-      out[name] = { status: 'down', error: (error as Error).message };
-    }
+  for (const name of registry().keys()) {
+    const state = await getComponentState(name);
+    if (state) out[name] = state;
   }
   return out;
+}
+
+/** The state of one registered component, or undefined when none is registered under `name`. */
+export async function getComponentState(name: string): Promise<ComponentState | undefined> {
+  const component = registry().get(name);
+  if (!component) return undefined;
+  try {
+    return await component.state();
+  } catch (error) {
+    return { status: 'down', error: (error as Error).message };
+  }
 }
