@@ -28,6 +28,9 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
     LOG_LEVEL: 'warn',
     NEXT_TELEMETRY_DISABLED: '1',
     INGEST_CLIENT_ID: `millrace-test-${port}`,
+    // A share group of its own: on a shared broker, persistent sessions left by other
+    // ingesters in the default group would take their share of this test's messages.
+    INGEST_SHARE_GROUP: `millrace-test-${port}`,
     ...extraEnv,
   };
   let dropDb: (() => Promise<void>) | undefined;
