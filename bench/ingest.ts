@@ -13,14 +13,18 @@
  *
  *   npm run bench:ingest [-- SAMPLES [UNITS]]
  *
- * BENCH_INGEST_NODE_OPTIONS sets NODE_OPTIONS of the ingesters of the first two runs.
+ * The ingesters run as `npm run ingest` does, with its heap flags.
+ * BENCH_INGEST_NODE_ARGS (space-separated) adds node flags to every ingester,
+ * after the script's (e.g. `--cpu-prof --cpu-prof-dir=/tmp/prof`, or another
+ * `--max-old-space-size`);
+ * BENCH_INGEST_LOG_LEVEL (default info) and BENCH_INGEST_LOG_DIR keep the ingesters' logs.
  */
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import postgres from 'postgres';
 import { openDatabase, type DatabaseHandle } from '../db/client';
 import { ensureMonthlyPartitions } from '../db/partitions';
 import { createPostgresDatabase } from '../test/support/backend';
-import { openPublisher, registerFleet, spawnIngester, testFleet, type Outgoing } from '../test/support/ingest';
+import { ingestNodeArgs, openPublisher, registerFleet, spawnIngester, testFleet, type Outgoing } from '../test/support/ingest';
 import { startMosquitto, type TestMosquitto } from '../test/support/mosquitto';
 
 const samples = Number(process.argv[2] ?? 300_000);
@@ -32,6 +36,8 @@ const messagesTotal = Math.floor(samples / SAMPLES_PER_MESSAGE);
 const N = messagesTotal * SAMPLES_PER_MESSAGE;
 const adminUrl = process.env.TEST_DATABASE_URL || process.env.DATABASE_URL || 'postgres://postgres@127.0.0.1:5432/postgres';
 
+const logDir = process.env.BENCH_INGEST_LOG_DIR;
+const nodeArgs = (process.env.BENCH_INGEST_NODE_ARGS ?? '').split(' ').filter(Boolean);
 const say = (line: string) => process.stdout.write(`${line}\n`);
 const fmt = (n: number) => Math.round(n).toLocaleString('en-US');
 
@@ -131,7 +137,7 @@ function rssPeakMb(pid: number | undefined): number | undefined {
 }
 
 /** Publishes everything and waits until every sample is committed; returns samples/s and the ingesters' peak RSS. */
-async function endToEnd(sql: postgres.Sql, dbUrl: string, brokerUrl: string, ingesters: number, list: Outgoing[], run: number, nodeOptions?: string) {
+async function endToEnd(sql: postgres.Sql, dbUrl: string, brokerUrl: string, ingesters: number, list: Outgoing[], run: number) {
   const children: Array<ReturnType<typeof spawnIngester>> = [];
   for (let i = 0; i < ingesters; i++) {
     children.push(
@@ -141,9 +147,8 @@ async function endToEnd(sql: postgres.Sql, dbUrl: string, brokerUrl: string, ing
         INGEST_CLIENT_ID: `bench-${run}-${i}`,
         // A group per run: the sessions of an earlier run's ingesters stay in their group.
         INGEST_SHARE_GROUP: `millrace-bench-${run}`,
-        LOG_LEVEL: 'info',
-        ...(nodeOptions ? { NODE_OPTIONS: nodeOptions } : {}),
-      }),
+        LOG_LEVEL: process.env.BENCH_INGEST_LOG_LEVEL ?? 'info',
+      }, nodeArgs),
     );
   }
   const subscribed = () => children.every((c) => (c.output().match(/"msg":"subscribed"/g) ?? []).length >= Number(process.env.INGEST_CONNECTIONS ?? 4));
@@ -170,6 +175,7 @@ async function endToEnd(sql: postgres.Sql, dbUrl: string, brokerUrl: string, ing
   for (const c of children) {
     const code = await c.stop('SIGTERM');
     if (code !== 0) say(`  ingester exited with ${code}: ${c.output().slice(-2000)}`);
+    if (logDir) writeFileSync(`${logDir}/ingester-${run}-${children.indexOf(c)}.log`, c.output());
     const stopped = /"msg":"ingester stopped".*"memory":(\{[^}]*\})/.exec(c.output());
     if (stopped) say(`  ingester memory (sampled each second, MB): ${stopped[1]}`);
   }
@@ -192,7 +198,8 @@ async function main() {
     const payloadBytes = list.reduce((s, m) => s + Buffer.byteLength(m.payload as string), 0);
     say(`ingest benchmark: ${fmt(N)} samples, ${fmt(list.length)} messages of ${SAMPLES_PER_MESSAGE} (${Math.round(payloadBytes / list.length)} bytes each), ${unitCount} units`);
     say(`  database ${new URL(created.url).host}${new URL(created.url).pathname} (fresh), broker ${mosquitto ? `${brokerUrl} (own Mosquitto, shipped configuration)` : brokerUrl}`);
-    say(`  ingester defaults: ${process.env.INGEST_CONNECTIONS ?? 4} connections, batches of ${process.env.INGEST_BATCH_SAMPLES ?? 5000} samples or ${process.env.INGEST_BATCH_MS ?? 200} ms`);
+    say(`  ingester: node ${[...ingestNodeArgs().slice(0, -1), ...nodeArgs, ...ingestNodeArgs().slice(-1)].join(' ')}`);
+    say(`  ${process.env.INGEST_CONNECTIONS ?? 4} connections, batches of ${process.env.INGEST_BATCH_SAMPLES ?? 20_000} samples or ${process.env.INGEST_BATCH_MS ?? 200} ms, buffer ${process.env.INGEST_BUFFER_SAMPLES ?? 200_000} samples`);
 
     const ceiling = await copyCeiling(sql, keys, list);
     say(`COPY ceiling (no broker, no ingester): ${fmt(ceiling)} rows/s`);
@@ -203,21 +210,14 @@ async function main() {
     say(`  stored size: ${fmt(bytesPerRow)} bytes per row (table, primary key and BRIN index, pg_total_relation_size)`);
     await reset(sql);
 
-    const defaultHeap = process.env.BENCH_INGEST_NODE_OPTIONS;
-    const one = await endToEnd(sql, created.url, brokerUrl, 1, list, 1, defaultHeap);
+    const one = await endToEnd(sql, created.url, brokerUrl, 1, list, 1);
     say(`end to end, 1 ingester: ${fmt(one.rate)} samples/s (${one.seconds.toFixed(1)} s; publisher done after ${one.publishSeconds.toFixed(1)} s), ingester RSS peak ${one.rssPeakMb.toFixed(0)} MB`);
     const [rollups] = await sql`select sum(samples)::int as n from telemetry_rollups_10m`;
     if (Number(rollups!.n) !== N) say(`  WARNING: rollups count ${rollups!.n} samples, expected ${N}`);
     await reset(sql);
 
-    const two = await endToEnd(sql, created.url, brokerUrl, 2, list, 2, defaultHeap);
+    const two = await endToEnd(sql, created.url, brokerUrl, 2, list, 2);
     say(`end to end, 2 ingesters: ${fmt(two.rate)} samples/s (${two.seconds.toFixed(1)} s), ingester RSS peak ${two.rssPeakMb.toFixed(0)} MB, ratio to COPY ${(two.rate / ceiling).toFixed(2)}`);
-    await reset(sql);
-
-    // Node lets its heap grow far past the live data under this allocation rate; a bound shows what the ingester needs.
-    const bounded = '--max-old-space-size=128 --max-semi-space-size=4';
-    const tight = await endToEnd(sql, created.url, brokerUrl, 1, list, 3, bounded);
-    say(`end to end, 1 ingester with NODE_OPTIONS="${bounded}": ${fmt(tight.rate)} samples/s, ingester RSS peak ${tight.rssPeakMb.toFixed(0)} MB`);
     say(`ingest: ${fmt(one.rate)} samples/s end-to-end, ${fmt(ceiling)} samples/s COPY ceiling, ratio ${(one.rate / ceiling).toFixed(2)}`);
   } finally {
     await sql.end({ timeout: 5 });

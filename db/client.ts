@@ -49,10 +49,15 @@ export interface OpenDatabaseOptions {
   maxConnections?: number;
 }
 
-/** The committed migrations; beside this file, or under the working folder when bundled. */
+/**
+ * The committed migrations: beside this file; when bundled, in the project
+ * that holds the bundle (bin/ingest.mjs writes it to node_modules/.cache/millrace);
+ * else under the working folder.
+ */
 export function migrationsFolder(): string {
-  const beside = join(dirname(fileURLToPath(import.meta.url)), 'migrations');
-  return existsSync(join(beside, 'meta', '_journal.json')) ? beside : resolve('db', 'migrations');
+  const here = dirname(fileURLToPath(import.meta.url));
+  const candidates = [join(here, 'migrations'), resolve(here, '..', '..', '..', 'db', 'migrations'), resolve('db', 'migrations')];
+  return candidates.find((folder) => existsSync(join(folder, 'meta', '_journal.json'))) ?? candidates[0]!;
 }
 
 /** Months of partitions made ahead of the current one. */

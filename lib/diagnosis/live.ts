@@ -27,8 +27,16 @@ import { keTrend } from './trend';
 
 /** Most samples read per unit and window: 6 h at one a second, with room (bounds memory and time). */
 export const DEFAULT_MAX_SAMPLES = 25_000;
-/** Units read and written together. */
+/** Units read and written together, at most. */
 export const DEFAULT_BATCH_UNITS = 50;
+/**
+ * Most sample rows a pass may hold at once, over all batches in flight. The
+ * pass runs inside the ingester, whose heap is bounded (package.json, the
+ * ingest script): a row read costs some 300 bytes until it is packed, so
+ * 200,000 rows stay near 60 MB. Batches shrink to fit: with the default
+ * 25,000-sample cap and 4 in flight, 2 units a batch.
+ */
+export const DEFAULT_ROWS_IN_FLIGHT = 200_000;
 /** Batches in flight at once (postgres-js pools connections; PGlite runs them in turn). */
 export const DEFAULT_CONCURRENCY = 4;
 /** Seconds between history rows of a unit. */
@@ -125,6 +133,14 @@ async function diagnoseBatch(
 }
 
 /**
+ * Units a batch so that the batches in flight hold at most {@link DEFAULT_ROWS_IN_FLIGHT} rows.
+ * @example defaultBatchUnits(25_000, 4) // 2
+ */
+export function defaultBatchUnits(maxSamples: number, concurrency: number): number {
+  return Math.max(1, Math.min(DEFAULT_BATCH_UNITS, Math.floor(DEFAULT_ROWS_IN_FLIGHT / (maxSamples * concurrency))));
+}
+
+/**
  * Diagnoses every unit that is due, once.
  * @example await runDiagnosisPass({ db }) // { units: 1000, samples: 2160000, ... }
  */
@@ -134,7 +150,7 @@ export async function runDiagnosisPass(options: DiagnosisPassOptions): Promise<D
     db: options.db,
     windowHours: options.windowHours ?? DEFAULT_LIMITS.windowHours,
     maxSamples: options.maxSamples ?? DEFAULT_MAX_SAMPLES,
-    batchUnits: options.batchUnits ?? DEFAULT_BATCH_UNITS,
+    batchUnits: options.batchUnits ?? defaultBatchUnits(options.maxSamples ?? DEFAULT_MAX_SAMPLES, options.concurrency ?? DEFAULT_CONCURRENCY),
     concurrency: options.concurrency ?? DEFAULT_CONCURRENCY,
     historyEveryS: options.historyEveryS ?? DEFAULT_HISTORY_EVERY_S,
     nowMs: options.nowMs ?? Date.now(),

@@ -172,7 +172,7 @@ export function createBatcher(options: BatcherOptions) {
       waitMs: Number.isFinite(oldest) ? end - oldest : 0,
       atMs: end,
     };
-    log.debug('batch committed', { messages: batch.length, ...lastBatch, pendingSamples: pendingWeight });
+    log.debug('batch committed', { messages: batch.length, ...lastBatch, pendingSamples: pendingWeight, phases: result.phases });
   }
 
   function noteOutage(error: unknown) {
@@ -202,8 +202,8 @@ export function createBatcher(options: BatcherOptions) {
   }
 
   /** One write, with a watchdog on PostgreSQL: a connection can hang rather than fail. */
-  async function write(batch: PendingMessage[]): Promise<BatchResult> {
-    const writing = writeBatch({ database, directory, messages: batch });
+  async function write(batch: PendingMessage[], byInsert: boolean): Promise<BatchResult> {
+    const writing = writeBatch({ database, directory, messages: batch, byInsert });
     if (database.backend !== 'postgres') return writing;
     let timer: NodeJS.Timeout | undefined;
     try {
@@ -224,15 +224,16 @@ export function createBatcher(options: BatcherOptions) {
   /**
    * Writes `batch` and acknowledges its messages, waiting out an unreachable
    * database with backoff; a refusal for any other reason comes back.
+   * `byInsert` writes samples by INSERT, whose refusals say what was wrong.
    */
-  async function attempt(batch: PendingMessage[]): Promise<Attempt> {
+  async function attempt(batch: PendingMessage[], byInsert = false): Promise<Attempt> {
     let delay = retryMs;
     for (;;) {
       batch = dropDead(batch);
       if (batch.length === 0) return { ok: true };
       const startedAt = now();
       try {
-        const result = await write(batch);
+        const result = await write(batch, byInsert);
         noteRecovery();
         account(result, batch, startedAt);
         for (const m of batch) m.ack();
@@ -262,12 +263,12 @@ export function createBatcher(options: BatcherOptions) {
       if ('ok' in result && !result.ok) {
         log.warn('database refused a batch; retrying it once', { error: result.error, messages: batch.length });
         await sleep(retryMs);
-        result = await attempt(batch);
+        result = await attempt(batch, true);
       }
       if (!('ok' in result) || result.ok) return;
       log.warn('database refused a batch again; committing its messages one by one', { error: result.error, messages: batch.length });
       for (const m of batch) {
-        const alone = await attempt([m]);
+        const alone = await attempt([m], true);
         if (!('ok' in alone)) return;
         if (alone.ok) continue;
         // Refused on its own: quarantine it whole, with the database's words.

@@ -13,6 +13,13 @@
  * persistent session and the insert ignores the duplicate. While the buffer
  * is full the handler does not call back, so mqtt.js stops reading the socket
  * and the broker keeps the rest.
+ *
+ * mqtt.js goes from one message to the next by process.nextTick, and a
+ * connection with a backlog hands over chunk after chunk in one go: left
+ * alone, decoding a backlog would hold the event loop for a whole batch
+ * and the database connection would sit waiting for its next statement. So
+ * every {@link SLICE_MS} ms of message handling the pool lets the event loop
+ * turn once (setImmediate) before it takes the next message.
  */
 import mqtt, { type IClientOptions, type IPublishPacket, type MqttClient } from 'mqtt';
 import type { Logger } from '../log/logger';
@@ -63,6 +70,9 @@ export interface ConnectionPoolOptions {
   onConnectionClosed?(): void;
 }
 
+/** Longest run of message handling before the event loop may serve other I/O, ms. */
+export const SLICE_MS = 4;
+
 /** Marker that makes mqtt.js skip its own PUBACK (see the module comment). */
 const ACK_LATER = Object.freeze(new Error('acknowledged after commit'));
 
@@ -100,6 +110,15 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
   const states: ConnectionState[] = [];
   const clients: MqttClient[] = [];
   const readies: Array<Promise<void>> = [];
+  let sliceStart = performance.now();
+  /** Runs `next` now, or after one turn of the event loop once this slice is used up. */
+  const inSlice = (next: () => void) => {
+    if (performance.now() - sliceStart < SLICE_MS) return next();
+    setImmediate(() => {
+      sliceStart = performance.now();
+      next();
+    });
+  };
 
   for (let i = 0; i < count; i++) {
     const id = `${clientId}-${i}`;
@@ -153,7 +172,7 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
           },
           () => {},
         );
-      } else proceed();
+      } else inSlice(proceed);
     };
 
     const subscribe = async () => {

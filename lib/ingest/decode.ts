@@ -86,6 +86,8 @@ export function jsonDepth(text: string, limit = MAX_JSON_DEPTH): number {
 
 const utf8 = new TextDecoder('utf-8', { fatal: true });
 const NO_FIELDS: string[] = Object.freeze([]) as unknown as string[];
+/** The shared empty list of quarantine entries (never written). */
+const NO_ENTRIES: QuarantineEntry[] = Object.freeze([]) as unknown as QuarantineEntry[];
 
 export interface TelemetryDecoderOptions {
   /** Samples older than this many days are refused (they would be deleted at once by retention). */
@@ -153,11 +155,19 @@ export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOption
 
     const oldestMs = receivedAtMs - retentionDays * MS_PER_DAY;
     const samples = createSampleBlock(raws.length);
-    const quarantined: QuarantineEntry[] = [];
-    const unknown = new Set<string>();
-    const seenTs = new Map<number, number>();
+    let quarantined: QuarantineEntry[] = NO_ENTRIES;
+    let unknown: Set<string> | undefined;
+    // Repeated times: a scan of the few kept so far, a map for a long array.
+    const seenTs = raws.length > 32 ? new Map<number, number>() : undefined;
+    const firstWithTs = (ts: number): number | undefined => {
+      if (seenTs) return seenTs.get(ts);
+      for (let k = 0; k < samples.count; k++) if (samples.ts[k] === ts) return keptIndex[k];
+      return undefined;
+    };
+    const keptIndex: number[] = [];
     const rejectSample = (index: number, raw: unknown, reason: string) => {
       const sampleText = single ? text : (JSON.stringify(raw) ?? String(raw));
+      if (quarantined === NO_ENTRIES) quarantined = [];
       quarantined.push({
         sampleIndex: single ? null : index,
         payload: boundText(sampleText, single ? QUARANTINE_PAYLOAD_CHARS : QUARANTINE_SAMPLE_CHARS),
@@ -165,11 +175,12 @@ export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOption
         reason,
       });
     };
-    raws.forEach((raw, index) => {
+    for (let index = 0; index < raws.length; index++) {
+      const raw = raws[index];
       const result = parseTelemetrySample(raw, schema);
       if (!result.ok) {
         rejectSample(index, raw, result.problems.join('; '));
-        return;
+        continue;
       }
       const sample = result.sample;
       // The column keeps whole milliseconds; rounding here keeps keys and rows alike.
@@ -180,18 +191,19 @@ export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOption
           raw,
           `ts: ${new Date(sample.ts).toISOString()} is older than the ${retentionDays}-day retention (RETENTION_DAYS); it would be deleted at once`,
         );
-        return;
+        continue;
       }
-      const first = seenTs.get(sample.ts);
+      const first = firstWithTs(sample.ts);
       if (first !== undefined) {
         rejectSample(index, raw, `ts: ${new Date(sample.ts).toISOString()} repeats sample [${first}] of this message; only the first was kept`);
-        return;
+        continue;
       }
-      seenTs.set(sample.ts, index);
-      for (const field of result.unknownFields) unknown.add(field);
+      seenTs?.set(sample.ts, index);
+      keptIndex.push(index);
+      for (const field of result.unknownFields) (unknown ??= new Set()).add(field);
       appendSample(samples, sample);
-    });
-    return { samples, quarantined, unknownFields: unknown.size > 0 ? [...unknown] : NO_FIELDS };
+    }
+    return { samples, quarantined, unknownFields: unknown ? [...unknown] : NO_FIELDS };
   }
 
   return { decode };

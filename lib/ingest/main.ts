@@ -8,6 +8,7 @@
 import { openDatabase } from '../../db/client';
 import { getConfig } from '../config/env';
 import { createLogger } from '../log/logger';
+import { heapProblem } from './heap';
 import { startIngester } from './ingester';
 import { startLiveDiagnosis } from '../diagnosis/live';
 
@@ -25,6 +26,11 @@ async function main(): Promise<number> {
       'millrace ingest: the standalone ingester needs MQTT_URL, the address of an MQTT 5 broker such as Mosquitto ' +
         '(e.g. MQTT_URL=mqtt://127.0.0.1:1883); the embedded set-up, with its own broker and ingester inside the server, is `npm start`\n',
     );
+    return 2;
+  }
+  const heap = heapProblem(config.INGEST_BUFFER_SAMPLES, config.INGEST_BATCH_SAMPLES);
+  if (heap) {
+    process.stderr.write(`millrace ingest: ${heap}\n`);
     return 2;
   }
   const handle = await openDatabase({ url: config.DATABASE_URL, dataDir: config.DATA_DIR, maxConnections: 4 });

@@ -8,6 +8,7 @@
 import type { TelemetrySample } from '../contract/telemetry';
 import { VALUE_FIELDS, columnOfField, type ValueField } from '../contract/telemetry';
 import type { EnergyPoint, RollupDelta, Stat } from './rollups';
+import { BLOCK_WIDTH, type SampleBlock } from './sample-block';
 import type { SqlRunner } from './sql';
 
 
@@ -137,21 +138,45 @@ export async function getStoredAround({
   return out;
 }
 
-const COPY_SAMPLES = `copy telemetry_samples (unit_key, ts, ${SAMPLE_COLUMNS.map(([, c]) => c).join(', ')}) from stdin`;
+const COPY_SAMPLES = `copy telemetry_samples (unit_key, ts, ${SAMPLE_COLUMNS.map(([, c]) => c).join(', ')}) from stdin with (format binary)`;
 
 const INSERT_NEW_SAMPLES = INSERT_SAMPLES.replace(/\nreturning .*$/s, '');
 
 /**
- * Writes rows known not to be stored yet (the caller holds their units'
- * locks and has read what exists): COPY on PostgreSQL, an unnest insert on
- * PGlite. Throws when a row turns out to exist after all.
+ * New rows by reference into the batch's sample blocks: row r is sample
+ * `index[r]` of `blocks[r]`, for unit `unitKeys[r]`.
  */
-export async function writeNewSampleColumns({ tx, columns }: { tx: SqlRunner; columns: SampleColumns }): Promise<void> {
-  const n = columns.unitKeys.length;
+export interface SampleRowRefs {
+  count: number;
+  unitKeys: Int32Array;
+  blocks: SampleBlock[];
+  index: Int32Array;
+}
+
+/**
+ * Writes rows known not to be stored yet (the caller holds their units'
+ * locks and has read what exists): binary COPY on PostgreSQL, an unnest
+ * insert on PGlite or when `byInsert` (a retry, for the database's own words
+ * on what it refused). Throws when a row turns out to exist after all.
+ */
+export async function writeNewSamples({ tx, rows, byInsert = false }: { tx: SqlRunner; rows: SampleRowRefs; byInsert?: boolean }): Promise<void> {
+  const n = rows.count;
   if (n === 0) return;
-  if (tx.copyIn) {
-    await tx.copyIn(COPY_SAMPLES, copyText(columns));
+  if (tx.copyIn && !byInsert) {
+    await tx.copyIn(COPY_SAMPLES, copyBinary(rows));
     return;
+  }
+  const columns: SampleColumns = { unitKeys: new Array(n), ts: new Array(n), values: [] };
+  for (let f = 0; f < BLOCK_WIDTH; f++) columns.values.push(new Array<number | null>(n));
+  for (let r = 0; r < n; r++) {
+    const block = rows.blocks[r]!;
+    const i = rows.index[r]!;
+    columns.unitKeys[r] = rows.unitKeys[r]!;
+    columns.ts[r] = block.ts[i]!;
+    for (let f = 0; f < BLOCK_WIDTH; f++) {
+      const v = block.values[i * BLOCK_WIDTH + f]!;
+      columns.values[f]![r] = Number.isNaN(v) ? null : v;
+    }
   }
   const count = tx.command ? await tx.command(INSERT_NEW_SAMPLES, [columns.unitKeys, columns.ts, ...columns.values]) : n;
   if (count !== n) {
@@ -159,24 +184,64 @@ export async function writeNewSampleColumns({ tx, columns }: { tx: SqlRunner; co
   }
 }
 
-/** COPY text of the columns, in chunks of about 256 kB. */
-function* copyText(columns: SampleColumns): Generator<string> {
-  const n = columns.unitKeys.length;
-  const width = columns.values.length;
-  let text = '';
-  for (let r = 0; r < n; r++) {
-    text += `${columns.unitKeys[r]}\t${new Date(columns.ts[r]!).toISOString()}`;
-    for (let c = 0; c < width; c++) {
-      const v = columns.values[c]![r];
-      text += v === null || v === undefined ? '\t\\N' : `\t${v}`;
+/** Milliseconds from 1970 to PostgreSQL's epoch, 2000-01-01 UTC. */
+const PG_EPOCH_MS = Date.UTC(2000, 0, 1);
+const TWO_32 = 2 ** 32;
+/** Bytes of one row: field count, then unit key (int4), ts (int8), each value (float4), each with its length. */
+const ROW_BYTES = 2 + (4 + 4) + (4 + 8) + BLOCK_WIDTH * (4 + 4);
+const ROWS_PER_CHUNK = 2048;
+const COPY_SIGNATURE = Buffer.from('PGCOPY\n\xff\r\n\0', 'latin1');
+
+/**
+ * The rows in PostgreSQL's binary COPY format, in chunks of
+ * {@link ROWS_PER_CHUNK} rows. Values go as float4, as the `real` columns
+ * hold them (Math.fround, which the rollups use too); times as microseconds
+ * since 2000 (the table keeps whole milliseconds); an absent value as NULL.
+ * See the PostgreSQL manual, COPY, "Binary Format".
+ */
+export function* copyBinary(rows: SampleRowRefs): Generator<Uint8Array> {
+  const header = Buffer.alloc(COPY_SIGNATURE.length + 8);
+  COPY_SIGNATURE.copy(header, 0); // then flags (0) and header extension length (0)
+  yield header;
+  const fields = 2 + BLOCK_WIDTH;
+  for (let start = 0; start < rows.count; start += ROWS_PER_CHUNK) {
+    const end = Math.min(rows.count, start + ROWS_PER_CHUNK);
+    const last = end === rows.count;
+    const buf = Buffer.allocUnsafe((end - start) * ROW_BYTES + (last ? 2 : 0));
+    const view = new DataView(buf.buffer, buf.byteOffset, buf.byteLength);
+    let o = 0;
+    for (let r = start; r < end; r++) {
+      const block = rows.blocks[r]!;
+      const i = rows.index[r]!;
+      view.setInt16(o, fields);
+      view.setInt32(o + 2, 4);
+      view.setInt32(o + 6, rows.unitKeys[r]!);
+      view.setInt32(o + 10, 8);
+      const us = (block.ts[i]! - PG_EPOCH_MS) * 1000;
+      const high = Math.floor(us / TWO_32);
+      view.setInt32(o + 14, high);
+      view.setUint32(o + 18, us - high * TWO_32);
+      o += 22;
+      const row = i * BLOCK_WIDTH;
+      for (let f = 0; f < BLOCK_WIDTH; f++) {
+        const v = block.values[row + f]!;
+        if (Number.isNaN(v)) {
+          view.setInt32(o, -1);
+          o += 4;
+        } else {
+          view.setInt32(o, 4);
+          view.setFloat32(o + 4, v);
+          o += 8;
+        }
+      }
     }
-    text += '\n';
-    if (text.length > 1 << 18) {
-      yield text;
-      text = '';
+    if (last) {
+      view.setInt16(o, -1);
+      o += 2;
     }
+    yield buf.subarray(0, o);
   }
-  if (text) yield text;
+  if (rows.count === 0) yield Buffer.from([0xff, 0xff]);
 }
 
 const STATS = ['rpm', 'vll', 'amps', 'kw', 'statorC', 'resource'] as const;

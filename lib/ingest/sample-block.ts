@@ -25,7 +25,10 @@ export interface SampleBlock {
 
 /** An empty block with room for `capacity` samples. */
 export function createSampleBlock(capacity: number): SampleBlock {
-  return { count: 0, ts: new Float64Array(capacity), values: new Float64Array(capacity * WIDTH).fill(Number.NaN) };
+  // One buffer for times and values: one allocation a message, not two.
+  const all = new Float64Array(capacity * (WIDTH + 1));
+  const values = all.subarray(capacity).fill(Number.NaN);
+  return { count: 0, ts: all.subarray(0, capacity), values };
 }
 
 /** The empty block (shared; never written). */

@@ -20,8 +20,14 @@ export interface SqlRunner {
   query<T = Record<string, unknown>>(text: string, params?: readonly unknown[]): Promise<T[]>;
   /** Runs one statement and returns the number of rows it affected (ingest transactions). */
   command?(text: string, params?: readonly unknown[]): Promise<number>;
-  /** Streams COPY ... FROM STDIN text (PostgreSQL ingest transactions only). */
-  copyIn?(text: string, chunks: Iterable<string>): Promise<void>;
+  /**
+   * True when statements issued together (without waiting) go out together
+   * and run in order (postgres-js on one connection); false when each should
+   * wait for the one before (PGlite).
+   */
+  pipelines?: boolean;
+  /** Streams COPY ... FROM STDIN data, text or binary (PostgreSQL ingest transactions only). */
+  copyIn?(text: string, chunks: Iterable<string | Uint8Array>): Promise<void>;
 }
 
 /** The ingester's way into the database. */
@@ -41,11 +47,26 @@ export interface IngestDatabase {
 
 function runnerOf(sql: postgres.Sql | postgres.ReservedSql): SqlRunner {
   return {
+    pipelines: true,
     query: async <T>(text: string, params: readonly unknown[] = []) =>
       (await sql.unsafe(text, params as never[], { prepare: true })) as unknown as T[],
     command: async (text: string, params: readonly unknown[] = []) => (await sql.unsafe(text, params as never[], { prepare: true })).count,
-    async copyIn(text: string, chunks: Iterable<string>) {
+    async copyIn(text: string, chunks: Iterable<string | Uint8Array>) {
       const stream = await sql.unsafe(text).writable();
+      // postgres-js 3.4.9 never ends the stream when the server refuses the data after
+      // CopyDone (a duplicate key, a row outside every partition): the refusal is dropped
+      // and 'finish' never comes. So a second statement follows the COPY on the same
+      // connection; it fails with 25P02 exactly when the COPY failed.
+      type Finalising = { _final(cb: (error?: Error | null) => void): void };
+      let probeSent!: (probe: Promise<unknown>) => void;
+      const probe = new Promise<Promise<unknown>>((resolve) => (probeSent = resolve));
+      const final = (stream as unknown as Finalising)._final;
+      (stream as unknown as Finalising)._final = function (this: unknown, cb) {
+        final.call(this, cb); // sends CopyDone; only then may another statement go
+        const sent = sql.unsafe('select 1');
+        sent.catch(() => {});
+        probeSent(sent);
+      };
       await new Promise<void>((resolve, reject) => {
         stream.once('error', reject);
         stream.once('finish', () => resolve());
@@ -54,10 +75,23 @@ function runnerOf(sql: postgres.Sql | postgres.ReservedSql): SqlRunner {
             if (!stream.write(chunk)) await new Promise((r) => stream.once('drain', r));
           }
           stream.end();
-        })().catch(reject);
+          await (await probe);
+        })().catch((error: unknown) => reject(codesOf(error).includes('25P02') ? new CopyRefusedError(error) : error));
       });
     },
   };
+}
+
+/**
+ * The server refused the rows of a COPY; postgres-js does not pass on its
+ * words, so the batch is retried by the unnest insert, which does.
+ */
+export class CopyRefusedError extends Error {
+  readonly code = 'COPY_REFUSED';
+  constructor(cause: unknown) {
+    super('the database refused the rows sent by COPY (the reason is in the server log; the retry by INSERT reports it)', { cause });
+    this.name = 'CopyRefusedError';
+  }
 }
 
 function runnerOfPglite(db: { query<T>(text: string, params?: unknown[]): Promise<{ rows: T[]; affectedRows?: number }> }): SqlRunner {
@@ -124,8 +158,10 @@ export async function openIngestDatabase(handle: DatabaseHandle): Promise<Ingest
       const reserved = await current.sql.reserve();
       const tx = runnerOf(reserved);
       try {
-        await tx.query('begin');
-        const result = await fn(tx);
+        // Sent with the transaction's first statements, not waited for alone: postgres-js
+        // pipelines statements on one connection, and the server runs them in order.
+        const begun = tx.query('begin');
+        const [, result] = await Promise.all([begun, fn(tx)]);
         await tx.query('commit');
         return result;
       } catch (error) {

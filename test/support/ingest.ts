@@ -5,6 +5,7 @@
  * (they wait for a state, never for a time).
  */
 import { spawn } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import { randomBytes } from 'node:crypto';
 import mqtt, { type MqttClient } from 'mqtt';
 import { startEmbeddedBroker } from '../../lib/broker/embedded';
@@ -210,9 +211,26 @@ export function samplesPayload(startMs: number, count: number, stepMs: number, s
 }
 
 /** The standalone ingester (`npm run ingest`) as a child process. */
-export function spawnIngester(env: Record<string, string>) {
+/**
+ * What `npm run ingest` runs, as node arguments: its heap flags and
+ * bin/ingest.mjs, read from the package.json script so that tests and the
+ * benchmark run the ingester exactly as users do.
+ */
+export function ingestNodeArgs(): string[] {
+  const script = (JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { scripts: Record<string, string> }).scripts.ingest!;
+  const [command, ...args] = script.trim().split(/\s+/);
+  if (command !== 'node') throw new Error(`the ingest script must start with "node", got: ${script}`);
+  return args;
+}
+
+/**
+ * Starts `npm run ingest` as its own process (node, without npm in between);
+ * `nodeArgs` come after the script's flags (so they win) and before its file.
+ */
+export function spawnIngester(env: Record<string, string>, nodeArgs: readonly string[] = []) {
   const root = new URL('../../', import.meta.url);
-  const child = spawn(process.execPath, ['bin/run.mjs', 'lib/ingest/main.ts'], {
+  const script = ingestNodeArgs();
+  const child = spawn(process.execPath, [...script.slice(0, -1), ...nodeArgs, ...script.slice(-1)], {
     cwd: root,
     env: { ...process.env, LOG_LEVEL: 'warn', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
