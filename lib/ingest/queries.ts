@@ -397,10 +397,13 @@ export interface PresenceUpdate {
  * the stored time (it says nothing new); any change takes the receipt time.
  */
 export async function upsertUnitPresence({ tx, updates }: { tx: SqlRunner; updates: readonly PresenceUpdate[] }): Promise<void> {
+  // Both statements are issued at once (a unit has one update a batch, so they touch different rows):
+  // a caller may pipeline a COMMIT right behind this call.
+  const statements: Array<Promise<unknown>> = [];
   for (const retained of [false, true]) {
     const some = updates.filter((u) => u.retained === retained);
     if (some.length === 0) continue;
-    await tx.query(
+    statements.push(tx.query(
       `insert into unit_status as s (unit_key, presence, presence_at)
        select k, p::presence_state, ${ms('r')} from unnest($1::int4[], $2::text[], $3::float8[]) as u(k, p, r)
        on conflict (unit_key) do update set
@@ -411,8 +414,9 @@ export async function upsertUnitPresence({ tx, updates }: { tx: SqlRunner; updat
              : 'excluded.presence_at'
          }`,
       [some.map((u) => u.unitKey), some.map((u) => u.presence), some.map((u) => u.receivedAtMs)],
-    );
+    ));
   }
+  await Promise.all(statements);
 }
 
 /** A registered unit as the ingester needs it. */

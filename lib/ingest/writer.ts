@@ -52,7 +52,8 @@ export interface DecodedMessage {
 /**
  * Runs the statements in order: issued together where the runner pipelines
  * them (one round trip; the first refusal is the one reported), else one
- * after another.
+ * after another. Each function must issue all its statements at once, not
+ * one after another's result: what comes after it is already sent.
  */
 async function inOrder<T extends readonly (() => Promise<unknown>)[]>(
   tx: SqlRunner,
