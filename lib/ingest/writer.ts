@@ -118,7 +118,8 @@ export async function writeBatch({
   /** Rows to insert as (message index, sample index), with each message's unit key. */
   const refs: number[] = [];
   const unitOfMessage = new Int32Array(messages.length);
-  const taken = new Map<number, Set<number>>();
+  /** Units with samples in this batch (their locks are taken). */
+  const sampledUnits = new Set<number>();
   let duplicates = 0;
   let minTs = Infinity;
   let maxTs = -Infinity;
@@ -162,16 +163,10 @@ export async function writeBatch({
       for (const f of m.unknownFields) set.add(f);
     }
     let unitSeen = seen.get(unit.key);
-    let times = taken.get(unit.key);
-    if (!times) taken.set(unit.key, (times = new Set()));
     const block = m.samples;
+    if (block.count > 0) sampledUnits.add(unit.key);
     for (let i = 0; i < block.count; i++) {
       const ts = block.ts[i]!;
-      if (times.has(ts)) {
-        duplicates++;
-        continue;
-      }
-      times.add(ts);
       refs.push(mi * MAX_SAMPLES_PER_MESSAGE + i);
       if (ts < minTs) minTs = ts;
       if (ts > maxTs) maxTs = ts;
@@ -193,9 +188,20 @@ export async function writeBatch({
       unitAt[r] = unitOf(refs[r]!);
       tsAt[r] = tsOf(refs[r]!);
     }
-    const order = Uint32Array.from(refs.keys()).sort((a, b) => unitAt[a]! - unitAt[b]! || tsAt[a]! - tsAt[b]!);
+    // Ties (the same unit and time twice in the batch, as a redelivery makes them) in arrival order.
+    const order = Uint32Array.from(refs.keys()).sort((a, b) => unitAt[a]! - unitAt[b]! || tsAt[a]! - tsAt[b]! || a - b);
     const unsorted = refs.slice();
-    for (let r = 0; r < order.length; r++) refs[r] = unsorted[order[r]!]!;
+    // The first of each (unit, time) is kept: the rest are duplicates.
+    let kept = 0;
+    for (let r = 0; r < order.length; r++) {
+      const o = order[r]!;
+      if (kept > 0 && unitAt[o] === unitAt[order[r - 1]!] && tsAt[o] === tsAt[order[r - 1]!]) {
+        duplicates++;
+        continue;
+      }
+      refs[kept++] = unsorted[o]!;
+    }
+    refs.length = kept;
   }
   phase('prepare');
   if (refs.length > 0) await ensureMonthlyPartitions({ db: database.db(), fromMs: minTs, toMs: maxTs });
@@ -215,7 +221,7 @@ export async function writeBatch({
     // The lock and the read go out together (one round trip on PostgreSQL); the server takes the
     // lock before it runs the read, which therefore sees what another writer committed first.
     const [, stored] = await inOrder(tx, [
-      () => (database.backend === 'postgres' ? lockUnitKeys({ tx, unitKeys: [...taken.keys()] }) : Promise.resolve()),
+      () => (database.backend === 'postgres' ? lockUnitKeys({ tx, unitKeys: [...sampledUnits] }) : Promise.resolve()),
       () => getStoredAround({ tx, windows }),
     ] as const);
     phase('read');
