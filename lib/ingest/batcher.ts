@@ -61,6 +61,7 @@ export interface BatcherState {
   bufferLimit: number;
   committing: boolean;
   database: { reachable: boolean; outageSinceMs?: number; outages: number; lastError?: string };
+  /** `lagMs`: commit time minus the newest sample stored, of the last batch that stored samples. */
   lastBatch?: { samples: number; rows: number; ms: number; lagMs?: number; waitMs: number; atMs: number };
 }
 
@@ -168,7 +169,8 @@ export function createBatcher(options: BatcherOptions) {
       samples,
       rows: result.inserted,
       ms: end - startedAt,
-      lagMs: result.newestTsMs === undefined ? undefined : end - result.newestTsMs,
+      // A batch that stored no sample (presence, redeliveries only) leaves the lag of the last one that did.
+      lagMs: result.newestTsMs === undefined ? lastBatch?.lagMs : end - result.newestTsMs,
       waitMs: Number.isFinite(oldest) ? end - oldest : 0,
       atMs: end,
     };

@@ -56,7 +56,7 @@ export interface IngesterState extends ComponentState {
   counters: BatcherCounters & { reconnects: number };
   samplesPerSecond: number;
   rowsPerSecond: number;
-  /** Commit time minus the newest sample time of the last batch, ms. */
+  /** Commit time minus the newest sample time, of the last batch that stored samples, ms. */
   lagMs?: number;
   /** Commit time minus the receipt of the oldest message of the last batch, ms. */
   commitDelayMs?: number;
