@@ -249,7 +249,7 @@ describe('no loss with the shipped Mosquitto configuration and PostgreSQL', { ti
 
 describe('no loss on the embedded broker and database (aedes, PGlite)', { timeout: 180_000 }, () => {
   // Open bug, under the ingest issue: on 2026-12-02 this case stalled, rows no longer growing, about once in
-  // 40 runs here (before the pool yielded every 4 ms, once in 4 full runs). On Mosquitto and PostgreSQL the
+  // 80 runs here (before the pool yielded every 4 ms, once in 4 full runs). On Mosquitto and PostgreSQL the
   // same case passes every time. It is retried, not skipped: a stall that repeats still fails, and the
   // error carries the ingester's counters, buffer and connection for the cause (aedes's in-memory session
   // store after a takeover by the same client id is the suspect).
