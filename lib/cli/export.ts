@@ -18,7 +18,6 @@ import { parseOptions } from './args';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';
 
-
 /** Rows a page or a cursor step holds. */
 export const EXPORT_PAGE_ROWS = 5000;
 

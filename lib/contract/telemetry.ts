@@ -146,7 +146,8 @@ export function formatIssues(issues: readonly z.core.$ZodIssue[], prefix = ''): 
 }
 
 const KNOWN_FIELDS: ReadonlySet<string> = new Set(TELEMETRY_FIELDS);
-const NO_UNKNOWN_FIELDS: string[] = Object.freeze([]) as unknown as string[];
+/** The shared empty list of field names (never written). */
+export const NO_FIELDS: string[] = Object.freeze([]) as unknown as string[];
 
 /**
  * Validates one raw sample. Unknown fields are not kept: their names come
@@ -164,9 +165,9 @@ export function parseTelemetrySample(
   }
   const result = schema.safeParse(raw);
   if (!result.success) return { ok: false, problems: formatIssues(result.error.issues) };
-  let unknownFields: string[] = NO_UNKNOWN_FIELDS;
+  let unknownFields: string[] = NO_FIELDS;
   for (const key in raw) {
-    if (!KNOWN_FIELDS.has(key) && Object.hasOwn(raw, key)) (unknownFields === NO_UNKNOWN_FIELDS ? (unknownFields = []) : unknownFields).push(key);
+    if (!KNOWN_FIELDS.has(key) && Object.hasOwn(raw, key)) (unknownFields === NO_FIELDS ? (unknownFields = []) : unknownFields).push(key);
   }
   return { ok: true, sample: result.data, unknownFields };
 }

@@ -4,8 +4,10 @@
  * quarantine entry whose reason says what to fix. One bad sample in an array
  * does not reject its good neighbours.
  */
-import { describeValue, parseTelemetrySample, telemetrySampleSchema } from '../contract/telemetry';
+import { NO_FIELDS, describeValue, parseTelemetrySample, telemetrySampleSchema } from '../contract/telemetry';
 import { EMPTY_BLOCK, appendSample, createSampleBlock, type SampleBlock } from './sample-block';
+
+export { NO_FIELDS };
 
 /** Largest payload the ingester reads, bytes (256 KiB). */
 export const MAX_PAYLOAD_BYTES = 256 * 1024;
@@ -85,9 +87,8 @@ export function jsonDepth(text: string, limit = MAX_JSON_DEPTH): number {
 }
 
 const utf8 = new TextDecoder('utf-8', { fatal: true });
-const NO_FIELDS: string[] = Object.freeze([]) as unknown as string[];
 /** The shared empty list of quarantine entries (never written). */
-const NO_ENTRIES: QuarantineEntry[] = Object.freeze([]) as unknown as QuarantineEntry[];
+export const NO_ENTRIES: QuarantineEntry[] = Object.freeze([]) as unknown as QuarantineEntry[];
 
 export interface TelemetryDecoderOptions {
   /** Samples older than this many days are refused (they would be deleted at once by retention). */
@@ -159,12 +160,13 @@ export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOption
     let unknown: Set<string> | undefined;
     // Repeated times: a scan of the few kept so far, a map for a long array.
     const seenTs = raws.length > 32 ? new Map<number, number>() : undefined;
+    /** Index in the payload of each sample kept in the block. */
+    const keptIndex: number[] = [];
     const firstWithTs = (ts: number): number | undefined => {
       if (seenTs) return seenTs.get(ts);
       for (let k = 0; k < samples.count; k++) if (samples.ts[k] === ts) return keptIndex[k];
       return undefined;
     };
-    const keptIndex: number[] = [];
     const rejectSample = (index: number, raw: unknown, reason: string) => {
       const sampleText = single ? text : (JSON.stringify(raw) ?? String(raw));
       if (quarantined === NO_ENTRIES) quarantined = [];

@@ -10,7 +10,7 @@ import type { Logger } from '../log/logger';
 import { registerComponent, type ComponentState } from '../server/registry';
 import { createBatcher, type BatcherCounters, type PendingMessage } from './batcher';
 import { openConnectionPool, type ConnectionState, type Delivery } from './connections';
-import { QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload, type QuarantineEntry } from './decode';
+import { NO_ENTRIES, NO_FIELDS, QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload } from './decode';
 import { EMPTY_BLOCK } from './sample-block';
 import { runTelemetryMaintenance } from './maintenance';
 import { openIngestDatabase } from './sql';
@@ -78,8 +78,6 @@ export interface Ingester {
 }
 
 const DAY_MS = 86_400_000;
-const NO_FIELDS: string[] = Object.freeze([]) as unknown as string[];
-const NO_ENTRIES: QuarantineEntry[] = Object.freeze([]) as unknown as QuarantineEntry[];
 
 /** The client id of an ingester that was given none: `millrace-ingest-<host>`. */
 export function defaultIngestClientId(): string {

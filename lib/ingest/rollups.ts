@@ -72,37 +72,10 @@ export interface Stat {
 
 const f32 = Math.fround;
 
-function mean(values: ReadonlyArray<number | undefined>): number | undefined {
-  let sum = 0;
-  let n = 0;
-  for (const v of values) {
-    if (v !== undefined) {
-      sum += f32(v);
-      n++;
-    }
-  }
-  return n === 0 ? undefined : sum / n;
-}
+/** A value rounded to float4, as the `real` columns store it; undefined stays undefined. */
+const stored = (v: number | undefined) => (v === undefined ? undefined : f32(v));
 
-/**
- * The rollup view of a validated sample, rounded to the stored precision so
- * that rollups equal a recomputation from the stored rows.
- * @example rollupSampleOf({ ts: 0, rpm: 300, vab: 230, vbc: 232, windMs: 7 }, 'wind').vll // 231
- */
-export function rollupSampleOf(sample: TelemetrySample, kind: UnitKind): RollupSample {
-  const resource = kind === 'wind' ? sample.windMs : sample.flowM3s;
-  return {
-    ts: sample.ts,
-    rpm: f32(sample.rpm),
-    vll: mean([sample.vab, sample.vbc, sample.vca])!,
-    amps: mean([sample.ia, sample.ib, sample.ic]),
-    kw: sample.kw === undefined ? undefined : f32(sample.kw),
-    statorC: sample.statorC === undefined ? undefined : f32(sample.statorC),
-    resource: resource === undefined ? undefined : f32(resource),
-  };
-}
-
-/** {@link mean} of three values already rounded to float4, without an array (it runs for every stored sample). */
+/** Mean of the present values among three (already rounded), without an array: it runs for every stored sample. */
 function mean3(a: number | undefined, b: number | undefined, c: number | undefined): number | undefined {
   let sum = 0;
   let n = 0;
@@ -119,6 +92,24 @@ function mean3(a: number | undefined, b: number | undefined, c: number | undefin
     n++;
   }
   return n === 0 ? undefined : sum / n;
+}
+
+/**
+ * The rollup view of a validated sample, rounded to the stored precision so
+ * that rollups equal a recomputation from the stored rows.
+ * @example rollupSampleOf({ ts: 0, rpm: 300, vab: 230, vbc: 232, windMs: 7 }, 'wind').vll // 231
+ */
+export function rollupSampleOf(sample: TelemetrySample, kind: UnitKind): RollupSample {
+  const resource = kind === 'wind' ? sample.windMs : sample.flowM3s;
+  return {
+    ts: sample.ts,
+    rpm: f32(sample.rpm),
+    vll: mean3(stored(sample.vab), stored(sample.vbc), stored(sample.vca))!,
+    amps: mean3(stored(sample.ia), stored(sample.ib), stored(sample.ic)),
+    kw: stored(sample.kw),
+    statorC: stored(sample.statorC),
+    resource: stored(resource),
+  };
 }
 
 /** {@link rollupSampleOf} for sample `i` of a block. */

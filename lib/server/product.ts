@@ -106,7 +106,6 @@ async function hasSamples(handle: DatabaseHandle): Promise<boolean> {
   return rows[0]?.has === true;
 }
 
-
 /** Starts the product; resolves once it serves. Returns a function that stops it. */
 export async function startProduct({ role, env = process.env }: { role: 'all' | 'web'; env?: NodeJS.ProcessEnv }) {
   const config = loadConfig(env);
