@@ -66,6 +66,30 @@ async function inOrder<T extends readonly (() => Promise<unknown>)[]>(
   return results as Results;
 }
 
+/**
+ * Sorts `refs` by unit, then time, and drops repeats of a (unit, time), as a
+ * redelivery makes them: the first in arrival order is kept. `units` and
+ * `times` give each ref's keys by its position in arrival order. Returns how
+ * many were dropped.
+ */
+function sortUniqueRefs(refs: number[], units: readonly number[], times: readonly number[]): number {
+  // Sorted through an index into typed keys: the comparator runs some 300,000 times a batch.
+  const unitAt = Int32Array.from(units);
+  const tsAt = Float64Array.from(times);
+  const order = Uint32Array.from(refs.keys()).sort((a, b) => unitAt[a]! - unitAt[b]! || tsAt[a]! - tsAt[b]! || a - b);
+  const arrived = refs.slice();
+  let kept = 0;
+  for (let r = 0; r < order.length; r++) {
+    const o = order[r]!;
+    const p = order[r - 1];
+    if (r > 0 && unitAt[o] === unitAt[p!] && tsAt[o] === tsAt[p!]) continue;
+    refs[kept++] = arrived[o]!;
+  }
+  const dropped = refs.length - kept;
+  refs.length = kept;
+  return dropped;
+}
+
 /** Samples one message may hold (a 256 KiB payload holds far fewer). */
 const MAX_SAMPLES_PER_MESSAGE = 65_536;
 
@@ -117,6 +141,9 @@ export async function writeBatch({
   const unknownFieldsByUnit = new Map<string, Set<string>>();
   /** Rows to insert as (message index, sample index), with each message's unit key. */
   const refs: number[] = [];
+  /** Unit key and time of each of `refs`, in arrival order. */
+  const refUnits: number[] = [];
+  const refTimes: number[] = [];
   const unitOfMessage = new Int32Array(messages.length);
   /** Units with samples in this batch (their locks are taken). */
   const sampledUnits = new Set<number>();
@@ -168,6 +195,8 @@ export async function writeBatch({
     for (let i = 0; i < block.count; i++) {
       const ts = block.ts[i]!;
       refs.push(mi * MAX_SAMPLES_PER_MESSAGE + i);
+      refUnits.push(unit.key);
+      refTimes.push(ts);
       if (ts < minTs) minTs = ts;
       if (ts > maxTs) maxTs = ts;
       if (!unitSeen) seen.set(unit.key, (unitSeen = { unitKey: unit.key, lastSampleTsMs: ts, lastReceivedAtMs: m.receivedAtMs }));
@@ -179,30 +208,8 @@ export async function writeBatch({
   const blockOf = (ref: number) => messages[Math.floor(ref / MAX_SAMPLES_PER_MESSAGE)]!.samples;
   const unitOf = (ref: number) => unitOfMessage[Math.floor(ref / MAX_SAMPLES_PER_MESSAGE)]!;
   const tsOf = (ref: number) => blockOf(ref).ts[ref % MAX_SAMPLES_PER_MESSAGE]!;
-  // Index order: neighbouring rows land on the same index pages. Sorted through typed
-  // copies of the keys: a comparator that looked them up would run 300,000 times a batch.
-  {
-    const unitAt = new Int32Array(refs.length);
-    const tsAt = new Float64Array(refs.length);
-    for (let r = 0; r < refs.length; r++) {
-      unitAt[r] = unitOf(refs[r]!);
-      tsAt[r] = tsOf(refs[r]!);
-    }
-    // Ties (the same unit and time twice in the batch, as a redelivery makes them) in arrival order.
-    const order = Uint32Array.from(refs.keys()).sort((a, b) => unitAt[a]! - unitAt[b]! || tsAt[a]! - tsAt[b]! || a - b);
-    const unsorted = refs.slice();
-    // The first of each (unit, time) is kept: the rest are duplicates.
-    let kept = 0;
-    for (let r = 0; r < order.length; r++) {
-      const o = order[r]!;
-      if (kept > 0 && unitAt[o] === unitAt[order[r - 1]!] && tsAt[o] === tsAt[order[r - 1]!]) {
-        duplicates++;
-        continue;
-      }
-      refs[kept++] = unsorted[o]!;
-    }
-    refs.length = kept;
-  }
+  // Index order: neighbouring rows land on the same index pages.
+  duplicates += sortUniqueRefs(refs, refUnits, refTimes);
   phase('prepare');
   if (refs.length > 0) await ensureMonthlyPartitions({ db: database.db(), fromMs: minTs, toMs: maxTs });
   phase('partitions');
