@@ -24,7 +24,7 @@ import postgres from 'postgres';
 import { openDatabase, type DatabaseHandle } from '../db/client';
 import { ensureMonthlyPartitions } from '../db/partitions';
 import { createPostgresDatabase } from '../test/support/backend';
-import { ingestNodeArgs, openPublisher, registerFleet, spawnIngester, testFleet, type Outgoing } from '../test/support/ingest';
+import { ingestCommand, openPublisher, registerFleet, spawnIngester, testFleet, type Outgoing } from '../test/support/ingest';
 import { startMosquitto, type TestMosquitto } from '../test/support/mosquitto';
 
 const samples = Number(process.argv[2] ?? 300_000);
@@ -198,7 +198,7 @@ async function main() {
     const payloadBytes = list.reduce((s, m) => s + Buffer.byteLength(m.payload as string), 0);
     say(`ingest benchmark: ${fmt(N)} samples, ${fmt(list.length)} messages of ${SAMPLES_PER_MESSAGE} (${Math.round(payloadBytes / list.length)} bytes each), ${unitCount} units`);
     say(`  database ${new URL(created.url).host}${new URL(created.url).pathname} (fresh), broker ${mosquitto ? `${brokerUrl} (own Mosquitto, shipped configuration)` : brokerUrl}`);
-    say(`  ingester: node ${[...ingestNodeArgs().slice(0, -1), ...nodeArgs, ...ingestNodeArgs().slice(-1)].join(' ')}`);
+    say(`  ingester: node ${ingestCommand(nodeArgs).join(' ')}`);
     say(`  ${process.env.INGEST_CONNECTIONS ?? 4} connections, batches of ${process.env.INGEST_BATCH_SAMPLES ?? 20_000} samples or ${process.env.INGEST_BATCH_MS ?? 200} ms, buffer ${process.env.INGEST_BUFFER_SAMPLES ?? 200_000} samples`);
 
     const ceiling = await copyCeiling(sql, keys, list);

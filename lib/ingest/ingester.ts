@@ -171,7 +171,10 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       message.kind = 'presence';
       const presence = decodePresencePayload(delivery.payload);
       if (presence.ok) message.presence = presence.presence;
-      else [message.presence, message.quarantined] = [null, [presence.entry]];
+      else {
+        message.presence = null;
+        message.quarantined = [presence.entry];
+      }
     } else {
       message.kind = 'telemetry';
       const decoded = decoder.decode(delivery.payload, delivery.receivedAtMs);

@@ -398,7 +398,7 @@ export interface PresenceUpdate {
  */
 export async function upsertUnitPresence({ tx, updates }: { tx: SqlRunner; updates: readonly PresenceUpdate[] }): Promise<void> {
   // Both statements are issued at once (a unit has one update a batch, so they touch different rows):
-  // a caller may pipeline a COMMIT right behind this call.
+  // the caller may already have sent what follows (writer.ts, inOrder).
   const statements: Array<Promise<unknown>> = [];
   for (const retained of [false, true]) {
     const some = updates.filter((u) => u.retained === retained);

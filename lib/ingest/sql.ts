@@ -26,8 +26,8 @@ export interface SqlRunner {
    * wait for the one before (PGlite).
    */
   pipelines?: boolean;
-  /** Streams COPY ... FROM STDIN data, text or binary (PostgreSQL ingest transactions only). */
-  copyIn?(text: string, chunks: Iterable<string | Uint8Array>): Promise<void>;
+  /** Streams COPY ... FROM STDIN data (PostgreSQL ingest transactions only). */
+  copyIn?(text: string, chunks: Iterable<Uint8Array>): Promise<void>;
 }
 
 /** The ingester's way into the database. */
@@ -51,7 +51,7 @@ function runnerOf(sql: postgres.Sql | postgres.ReservedSql): SqlRunner {
     query: async <T>(text: string, params: readonly unknown[] = []) =>
       (await sql.unsafe(text, params as never[], { prepare: true })) as unknown as T[],
     command: async (text: string, params: readonly unknown[] = []) => (await sql.unsafe(text, params as never[], { prepare: true })).count,
-    async copyIn(text: string, chunks: Iterable<string | Uint8Array>) {
+    async copyIn(text: string, chunks: Iterable<Uint8Array>) {
       const stream = await sql.unsafe(text).writable();
       // postgres-js 3.4.9 never ends the stream when the server refuses the data after
       // CopyDone (a duplicate key, a row outside every partition): the refusal is dropped

@@ -223,14 +223,19 @@ export function ingestNodeArgs(): string[] {
   return args;
 }
 
+/** The node arguments that start the ingester: the script's flags, then `nodeArgs` (so they win), then its file. */
+export function ingestCommand(nodeArgs: readonly string[] = []): string[] {
+  const script = ingestNodeArgs();
+  return [...script.slice(0, -1), ...nodeArgs, ...script.slice(-1)];
+}
+
 /**
  * Starts `npm run ingest` as its own process (node, without npm in between);
  * `nodeArgs` come after the script's flags (so they win) and before its file.
  */
 export function spawnIngester(env: Record<string, string>, nodeArgs: readonly string[] = []) {
   const root = new URL('../../', import.meta.url);
-  const script = ingestNodeArgs();
-  const child = spawn(process.execPath, [...script.slice(0, -1), ...nodeArgs, ...script.slice(-1)], {
+  const child = spawn(process.execPath, ingestCommand(nodeArgs), {
     cwd: root,
     env: { ...process.env, LOG_LEVEL: 'warn', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
