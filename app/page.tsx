@@ -79,7 +79,7 @@ export default async function FleetPage() {
           <h2>
             Telemetry set aside <span className="muted">{fleet.quarantine.lastDay} in the last day, {fleet.quarantine.total} in all</span>
           </h2>
-          <p className="note">Samples that failed validation are kept with the reason, not stored as telemetry. Newest first:</p>
+          <p className="note">Telemetry that could not be stored (invalid, or from a unit not registered) is kept here with the reason. Newest first:</p>
           <ul>
             {fleet.quarantine.recent.map((q, i) => (
               <li key={i}>
