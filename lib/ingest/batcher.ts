@@ -10,6 +10,7 @@
  * logged once and its end once.
  */
 import type { Logger } from '../log/logger';
+import type { Receipt } from './connections';
 import { CommitTimeoutError, isTransientDbError, type IngestDatabase } from './sql';
 import { EMPTY_BLOCK } from './sample-block';
 import type { UnitDirectory } from './unit-directory';
@@ -19,10 +20,8 @@ import { writeBatch, type BatchResult, type DecodedMessage } from './writer';
 export interface PendingMessage extends DecodedMessage {
   /** QoS of the delivery (0 needs no acknowledgement and is never redelivered). */
   qos: number;
-  /** Sends the acknowledgement, if the connection it came on is still the same. */
-  ack(): void;
-  /** False once the connection it came on has closed: the broker will deliver it again. */
-  alive(): boolean;
+  /** Acknowledges it on the connection it came on; `alive()` is false once that closed (the broker will deliver it again). */
+  receipt: Receipt;
 }
 
 export interface BatcherOptions {
@@ -142,7 +141,7 @@ export function createBatcher(options: BatcherOptions) {
   }
 
   function dropDead(batch: PendingMessage[]): PendingMessage[] {
-    const live = batch.filter((m) => m.qos === 0 || m.alive());
+    const live = batch.filter((m) => m.qos === 0 || m.receipt.alive());
     counters.releasedForRedelivery += batch.length - live.length;
     return live;
   }
@@ -238,7 +237,7 @@ export function createBatcher(options: BatcherOptions) {
         const result = await write(batch, byInsert);
         noteRecovery();
         account(result, batch, startedAt);
-        for (const m of batch) m.ack();
+        for (const m of batch) m.receipt.ack();
         return { ok: true };
       } catch (error) {
         // A fresh client: a connection that failed may never send again, and a fresh
@@ -338,7 +337,7 @@ export function createBatcher(options: BatcherOptions) {
       const before = pending.length;
       const live: PendingMessage[] = [];
       for (const m of pending) {
-        if (m.qos > 0 && !m.alive()) {
+        if (m.qos > 0 && !m.receipt.alive()) {
           counters.releasedForRedelivery++;
           pendingWeight -= weightOf(m);
         } else live.push(m);

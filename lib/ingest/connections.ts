@@ -25,6 +25,14 @@ import mqtt, { type IClientOptions, type IPublishPacket, type MqttClient } from 
 import type { Logger } from '../log/logger';
 import { PRESENCE_FILTER, TELEMETRY_FILTER, sharedTelemetryFilter } from './topics';
 
+/** How a delivery is acknowledged: on the network connection it came on, by its packet id. */
+export interface Receipt {
+  /** Sends the PUBACK if the network connection it came on is still open. */
+  ack(): void;
+  /** False once that network connection has closed. */
+  alive(): boolean;
+}
+
 /** One message as a connection delivers it. */
 export interface Delivery {
   topic: string;
@@ -32,11 +40,73 @@ export interface Delivery {
   qos: number;
   retain: boolean;
   receivedAtMs: number;
-  /** Sends the PUBACK if the network connection it came on is still open. */
-  ack(): void;
-  /** False once that network connection has closed. */
-  alive(): boolean;
+  receipt: Receipt;
 }
+
+/**
+ * The PUBACKs of one connection, written together. A batch releases
+ * thousands of acknowledgements at once; through mqtt.js each would be a
+ * packet object, an event and several small socket writes. A PUBACK is four
+ * bytes (type, length 2, packet id; MQTT 5 lets a success omit the reason
+ * code and properties, section 3.4.2.1), so the ids queued in one tick go
+ * out as one write. They are written only on the network connection the
+ * messages came on, and only while it is open (see the module comment).
+ */
+class AckLine {
+  private ids: number[] = [];
+  private stream: unknown;
+  constructor(private readonly client: MqttClient) {}
+
+  open(stream: unknown): boolean {
+    return this.client.connected && this.client.stream === stream;
+  }
+
+  queue(stream: unknown, messageId: number): void {
+    if (this.ids.length > 0 && stream !== this.stream) this.flush();
+    if (this.ids.length === 0) {
+      this.stream = stream;
+      process.nextTick(() => this.flush());
+    }
+    this.ids.push(messageId);
+  }
+
+  /** Writes what is queued now (also called by the tick after the first was queued). */
+  flush(): void {
+    const ids = this.ids;
+    if (ids.length === 0) return;
+    this.ids = [];
+    if (!this.open(this.stream)) return;
+    const bytes = Buffer.allocUnsafe(ids.length * 4);
+    for (let k = 0; k < ids.length; k++) {
+      bytes[k * 4] = 0x40;
+      bytes[k * 4 + 1] = 2;
+      bytes.writeUInt16BE(ids[k]!, k * 4 + 2);
+    }
+    this.client.stream.write(bytes);
+  }
+}
+
+/** One delivery's receipt: no closures, as it is made for every message. */
+class DeliveryReceipt implements Receipt {
+  constructor(
+    private readonly line: AckLine,
+    private readonly stream: unknown,
+    private readonly qos: number,
+    private readonly messageId: number | undefined,
+  ) {}
+
+  ack(): void {
+    if (this.qos === 0 || this.messageId === undefined || !this.line.open(this.stream)) return;
+    this.line.queue(this.stream, this.messageId);
+  }
+
+  alive(): boolean {
+    return this.line.open(this.stream);
+  }
+}
+
+/** mqtt.js logs through `debug`, whose every call gathers its arguments into an array even when off. */
+const quiet = () => {};
 
 export interface ConnectionPoolOptions {
   brokerUrl: string;
@@ -109,6 +179,7 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
   let brokerDown = false;
   const states: ConnectionState[] = [];
   const clients: MqttClient[] = [];
+  const ackLines: AckLine[] = [];
   const readies: Array<Promise<void>> = [];
   let sliceStart = performance.now();
   /** Runs `next` now, or after one turn of the event loop once this slice is used up. */
@@ -126,6 +197,7 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
     states.push(state);
     const clientOptions: IClientOptions = {
       clientId: id,
+      log: quiet,
       protocolVersion: mqtt5 ? 5 : 4,
       clean: false,
       keepalive: keepaliveSeconds,
@@ -138,11 +210,11 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
     };
     const client = mqtt.connect(brokerUrl, clientOptions);
     clients.push(client);
+    const acks = new AckLine(client);
+    ackLines.push(acks);
 
     client.handleMessage = (packet: IPublishPacket, callback) => {
       if (stopping) return; // Left unacknowledged: the broker delivers it again to the next session.
-      const stream = client.stream;
-      const messageId = packet.messageId;
       const qos = packet.qos;
       const delivery: Delivery = {
         topic: packet.topic,
@@ -150,11 +222,7 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
         qos,
         retain: packet.retain,
         receivedAtMs: Date.now(),
-        alive: () => client.connected && client.stream === stream,
-        ack: () => {
-          if (qos === 0 || messageId === undefined || !client.connected || client.stream !== stream) return;
-          (client as unknown as { _sendPacket(p: object): void })._sendPacket({ cmd: 'puback', messageId });
-        },
+        receipt: new DeliveryReceipt(acks, client.stream, qos, packet.messageId),
       };
       const proceed = () => (qos > 0 ? callback(ACK_LATER) : callback());
       let wait: void | Promise<void> = undefined;
@@ -249,6 +317,7 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
     /** Sends what is queued (the last PUBACKs) and disconnects, keeping the sessions. */
     async close({ force = false }: { force?: boolean } = {}) {
       stopping = true;
+      if (!force) for (const line of ackLines) line.flush();
       await Promise.all(
         clients.map(
           (c) =>

@@ -162,8 +162,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       payloadBytes: delivery.payload.byteLength,
       topicProblem: undefined,
       qos: delivery.qos,
-      ack: delivery.ack,
-      alive: delivery.alive,
+      receipt: delivery.receipt,
     };
     if (!topic.ok) {
       message.topicProblem = topic.reason;

@@ -1,10 +1,11 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { integrateIntoBuckets } from '../energy/integrate';
-import { computeRollupDeltas, rollupSampleOf, TEN_MINUTES_MS, DAY_MS, type EnergyPoint, type RollupDelta, type RollupSample } from './rollups';
+import type { TelemetrySample } from '../contract/telemetry';
+import { computeRollupDeltas, rollupRowsOf, TEN_MINUTES_MS, DAY_MS, type EnergyPoint, type RollupDelta } from './rollups';
 
 /** What the neighbour query of the ingest transaction returns, done in memory. */
-function neighbours(stored: Map<number, number>, batch: readonly RollupSample[]): EnergyPoint[] {
+function neighbours(stored: Map<number, number>, batch: readonly TelemetrySample[]): EnergyPoint[] {
   const kwTs = batch.filter((s) => s.kw !== undefined).map((s) => s.ts);
   if (kwTs.length === 0) return [];
   const lo = Math.min(...kwTs);
@@ -26,12 +27,16 @@ function accumulate(into: Map<number, { kwh: number; coveredS: number; samples: 
   }
 }
 
-const sample = (ts: number, kw: number | undefined): RollupSample => ({ ts, rpm: 250, vll: 230, kw: kw === undefined ? undefined : Math.fround(kw) });
+const sample = (ts: number, kw: number | undefined): TelemetrySample => ({ ts, rpm: 250, vab: 230, kw: kw === undefined ? undefined : Math.fround(kw) });
+
+/** The deltas of `inserted` (any order) given the stored neighbours. */
+const deltasOf = (stored: EnergyPoint[], inserted: readonly TelemetrySample[]) =>
+  computeRollupDeltas({ unitKey: 1, stored, rows: rollupRowsOf(inserted, 'wind') });
 
 describe('incremental rollups', () => {
   it('gives the trapezoid of a worked example (6 kW then 12 kW five minutes later: 0.75 kWh)', () => {
     // Trapezoid rule, (6 + 12) / 2 kW × 5/60 h = 0.75 kWh (any calculus text).
-    const { tenMinute, daily } = computeRollupDeltas({ unitKey: 1, stored: [], inserted: [sample(0, 6), sample(300_000, 12)] });
+    const { tenMinute, daily } = deltasOf([], [sample(0, 6), sample(300_000, 12)]);
     expect(tenMinute).toHaveLength(1);
     expect(tenMinute[0]!.kwh).toBeCloseTo(0.75, 12);
     expect(tenMinute[0]!.coveredS).toBe(300);
@@ -40,14 +45,14 @@ describe('incremental rollups', () => {
   });
 
   it('counts nothing across a gap longer than 10 minutes (contract, section 5)', () => {
-    const { tenMinute } = computeRollupDeltas({ unitKey: 1, stored: [], inserted: [sample(0, 6), sample(600_001, 6)] });
+    const { tenMinute } = deltasOf([], [sample(0, 6), sample(600_001, 6)]);
     expect(tenMinute.reduce((s, d) => s + d.kwh, 0)).toBe(0);
     expect(tenMinute.reduce((s, d) => s + d.coveredS, 0)).toBe(0);
   });
 
   it('shares an interval across a bucket edge in proportion to time', () => {
     // 4 kW flat from 9 to 13 minutes past: 1 minute in the first bucket, 3 in the second.
-    const { tenMinute } = computeRollupDeltas({ unitKey: 1, stored: [], inserted: [sample(540_000, 4), sample(780_000, 4)] });
+    const { tenMinute } = deltasOf([], [sample(540_000, 4), sample(780_000, 4)]);
     const byBucket = new Map(tenMinute.map((d) => [d.bucketStartMs, d]));
     expect(byBucket.get(0)!.kwh).toBeCloseTo(4 / 60, 12);
     expect(byBucket.get(600_000)!.kwh).toBeCloseTo((4 * 3) / 60, 12);
@@ -57,25 +62,25 @@ describe('incremental rollups', () => {
   it('replaces the interval a late sample splits instead of adding to it', () => {
     // Stored 0 kW at 0 s and 0 kW at 300 s; a late 12 kW at 150 s adds two triangles: 2 × (12/2 kW × 150 s) = 0.5 kWh.
     const stored = [{ ts: 0, kw: 0 }, { ts: 300_000, kw: 0 }];
-    const { tenMinute } = computeRollupDeltas({ unitKey: 1, stored, inserted: [sample(150_000, 12)] });
+    const { tenMinute } = deltasOf(stored, [sample(150_000, 12)]);
     expect(tenMinute.reduce((s, d) => s + d.kwh, 0)).toBeCloseTo(0.5, 12);
     expect(tenMinute.reduce((s, d) => s + d.coveredS, 0)).toBe(0);
     expect(tenMinute.reduce((s, d) => s + d.samples, 0)).toBe(1);
   });
 
   it('leaves samples without kw out of energy and coverage but counts them', () => {
-    const { tenMinute } = computeRollupDeltas({ unitKey: 1, stored: [], inserted: [sample(0, undefined), sample(60_000, undefined)] });
+    const { tenMinute } = deltasOf([], [sample(0, undefined), sample(60_000, undefined)]);
     expect(tenMinute[0]!.samples).toBe(2);
     expect(tenMinute[0]!.coveredS).toBe(0);
     expect(tenMinute[0]!.kw.count).toBe(0);
   });
 
   it('rounds values to the stored float4 precision and averages the line voltages given', () => {
-    const r = rollupSampleOf({ ts: 0, rpm: 300.1, vab: 230, vbc: 232 }, 'wind');
-    expect(r.rpm).toBe(Math.fround(300.1));
-    expect(r.vll).toBe(231);
-    expect(r.amps).toBeUndefined();
-    expect(rollupSampleOf({ ts: 0, rpm: 1, vab: 1, flowM3s: 0.3, windMs: 9 }, 'hydro').resource).toBe(Math.fround(0.3));
+    const r = rollupRowsOf([{ ts: 0, rpm: 300.1, vab: 230, vbc: 232 }], 'wind');
+    expect(r.rpm[0]).toBe(Math.fround(300.1));
+    expect(r.vll[0]).toBe(231);
+    expect(r.amps[0]).toBeNaN();
+    expect(rollupRowsOf([{ ts: 0, rpm: 1, vab: 1, flowM3s: 0.3, windMs: 9 }], 'hydro').resource[0]).toBe(Math.fround(0.3));
   });
 
   it('equals a recomputation from the whole series, whatever the batches and their order (property)', () => {
@@ -91,7 +96,7 @@ describe('incremental rollups', () => {
     fc.assert(
       fc.property(arbitrarySeries, ([tsList, kwList, batchOf, redeliver]) => {
         const samples = tsList.map((ts, i) => sample(ts, kwList[i]));
-        const batches: RollupSample[][] = [[], [], [], [], [], []];
+        const batches: TelemetrySample[][] = [[], [], [], [], [], []];
         samples.forEach((s, i) => {
           batches[batchOf[i]!]!.push(s);
           // A redelivered duplicate in a later batch must change nothing.
@@ -101,11 +106,11 @@ describe('incremental rollups', () => {
         const storedTs = new Set<number>();
         const total = new Map<number, { kwh: number; coveredS: number; samples: number }>();
         for (const batch of batches) {
-          const fresh = new Map<number, RollupSample>();
+          const fresh = new Map<number, TelemetrySample>();
           for (const s of batch) if (!storedTs.has(s.ts) && !fresh.has(s.ts)) fresh.set(s.ts, s);
           const inserted = [...fresh.values()];
           const near = neighbours(stored, inserted);
-          accumulate(total, computeRollupDeltas({ unitKey: 1, stored: near, inserted }).tenMinute);
+          accumulate(total, deltasOf(near, inserted).tenMinute);
           for (const s of inserted) {
             storedTs.add(s.ts);
             if (s.kw !== undefined) stored.set(s.ts, s.kw);
@@ -128,7 +133,7 @@ describe('incremental rollups', () => {
 
   it('sums the ten-minute deltas into the daily ones', () => {
     const inserted = [sample(DAY_MS - 300_000, 2), sample(DAY_MS + 300_000, 4)];
-    const { tenMinute, daily } = computeRollupDeltas({ unitKey: 1, stored: [], inserted });
+    const { tenMinute, daily } = deltasOf([], inserted);
     expect(daily.map((d) => d.bucketStartMs).sort()).toEqual([0, DAY_MS]);
     expect(daily.reduce((s, d) => s + d.kwh, 0)).toBeCloseTo(tenMinute.reduce((s, d) => s + d.kwh, 0), 12);
     // 2 kW to 4 kW over 10 minutes is 0.5 kWh; split at midnight in proportion to time

@@ -15,7 +15,7 @@
  */
 import type { TelemetrySample } from '../contract/telemetry';
 import type { UnitKind } from '../contract/nameplate';
-import { FIELD_INDEX, BLOCK_WIDTH, type SampleBlock } from './sample-block';
+import { FIELD_INDEX, BLOCK_WIDTH, sampleBlockOf, type SampleBlock } from './sample-block';
 
 /** Length of the short rollup bucket, ms (10 minutes). */
 export const TEN_MINUTES_MS = 600_000;
@@ -25,18 +25,23 @@ export const DAY_MS = 86_400_000;
 export const MAX_COVERED_INTERVAL_MS = 10 * 60_000;
 const MS_PER_HOUR = 3_600_000;
 
-/** One inserted sample reduced to what the rollups keep, values as stored (float4). */
-export interface RollupSample {
-  ts: number;
-  rpm: number;
+/**
+ * Inserted samples reduced to what the rollups keep, column by column,
+ * values as stored (float4), NaN where absent. Columns rather than an
+ * object per sample: a batch holds tens of thousands of them.
+ */
+export interface RollupRows {
+  count: number;
+  ts: Float64Array;
+  rpm: Float64Array;
   /** Mean of the line voltages given. */
-  vll: number;
+  vll: Float64Array;
   /** Mean of the phase currents given. */
-  amps?: number;
-  kw?: number;
-  statorC?: number;
+  amps: Float64Array;
+  kw: Float64Array;
+  statorC: Float64Array;
   /** Wind speed (wind units) or flow (hydro units). */
-  resource?: number;
+  resource: Float64Array;
 }
 
 /** A stored sample that carries `kw`. */
@@ -72,70 +77,68 @@ export interface Stat {
 
 const f32 = Math.fround;
 
-/** A value rounded to float4, as the `real` columns store it; undefined stays undefined. */
-const stored = (v: number | undefined) => (v === undefined ? undefined : f32(v));
-
-/** Mean of the present values among three (already rounded), without an array: it runs for every stored sample. */
-function mean3(a: number | undefined, b: number | undefined, c: number | undefined): number | undefined {
+/** Mean of the present (non-NaN) values among three, without an array: it runs for every stored sample. */
+function mean3(a: number, b: number, c: number): number {
   let sum = 0;
   let n = 0;
-  if (a !== undefined) {
+  if (a === a) {
     sum += a;
     n++;
   }
-  if (b !== undefined) {
+  if (b === b) {
     sum += b;
     n++;
   }
-  if (c !== undefined) {
+  if (c === c) {
     sum += c;
     n++;
   }
-  return n === 0 ? undefined : sum / n;
+  return n === 0 ? Number.NaN : sum / n;
+}
+
+/** Room for `capacity` rows, none filled. */
+export function createRollupRows(capacity: number): RollupRows {
+  const all = new Float64Array(capacity * 7);
+  const column = (k: number) => all.subarray(k * capacity, (k + 1) * capacity);
+  return { count: 0, ts: column(0), rpm: column(1), vll: column(2), amps: column(3), kw: column(4), statorC: column(5), resource: column(6) };
 }
 
 /**
- * The rollup view of a validated sample, rounded to the stored precision so
- * that rollups equal a recomputation from the stored rows.
- * @example rollupSampleOf({ ts: 0, rpm: 300, vab: 230, vbc: 232, windMs: 7 }, 'wind').vll // 231
+ * Appends the rollup view of sample `i` of a block, rounded to the stored
+ * precision so that rollups equal a recomputation from the stored rows. One
+ * unit's rows must be appended in time order.
  */
-export function rollupSampleOf(sample: TelemetrySample, kind: UnitKind): RollupSample {
-  const resource = kind === 'wind' ? sample.windMs : sample.flowM3s;
-  return {
-    ts: sample.ts,
-    rpm: f32(sample.rpm),
-    vll: mean3(stored(sample.vab), stored(sample.vbc), stored(sample.vca))!,
-    amps: mean3(stored(sample.ia), stored(sample.ib), stored(sample.ic)),
-    kw: stored(sample.kw),
-    statorC: stored(sample.statorC),
-    resource: stored(resource),
-  };
+export function appendRollupRow(rows: RollupRows, block: SampleBlock, i: number, kind: UnitKind): void {
+  const at = i * BLOCK_WIDTH;
+  const v = block.values;
+  const r = rows.count++;
+  rows.ts[r] = block.ts[i]!;
+  rows.rpm[r] = f32(v[at + FIELD_INDEX.rpm]!);
+  rows.vll[r] = mean3(f32(v[at + FIELD_INDEX.vab]!), f32(v[at + FIELD_INDEX.vbc]!), f32(v[at + FIELD_INDEX.vca]!));
+  rows.amps[r] = mean3(f32(v[at + FIELD_INDEX.ia]!), f32(v[at + FIELD_INDEX.ib]!), f32(v[at + FIELD_INDEX.ic]!));
+  rows.kw[r] = f32(v[at + FIELD_INDEX.kw]!);
+  rows.statorC[r] = f32(v[at + FIELD_INDEX.statorC]!);
+  rows.resource[r] = f32(v[at + (kind === 'wind' ? FIELD_INDEX.windMs : FIELD_INDEX.flowM3s)]!);
 }
 
-/** {@link rollupSampleOf} for sample `i` of a block. */
-export function rollupSampleFromBlock(block: SampleBlock, i: number, kind: UnitKind): RollupSample {
-  const row = i * BLOCK_WIDTH;
-  const v = (index: number) => {
-    const x = block.values[row + index]!;
-    return Number.isNaN(x) ? undefined : f32(x);
-  };
-  return {
-    ts: block.ts[i]!,
-    rpm: v(FIELD_INDEX.rpm)!,
-    vll: mean3(v(FIELD_INDEX.vab), v(FIELD_INDEX.vbc), v(FIELD_INDEX.vca))!,
-    amps: mean3(v(FIELD_INDEX.ia), v(FIELD_INDEX.ib), v(FIELD_INDEX.ic)),
-    kw: v(FIELD_INDEX.kw),
-    statorC: v(FIELD_INDEX.statorC),
-    resource: v(kind === 'wind' ? FIELD_INDEX.windMs : FIELD_INDEX.flowM3s),
-  };
+/**
+ * The rollup rows of validated samples, in time order (stable).
+ * @example rollupRowsOf([{ ts: 0, rpm: 300, vab: 230, vbc: 232, windMs: 7 }], 'wind').vll[0] // 231
+ */
+export function rollupRowsOf(samples: readonly TelemetrySample[], kind: UnitKind): RollupRows {
+  const block = sampleBlockOf([...samples].sort((a, b) => a.ts - b.ts));
+  const rows = createRollupRows(block.count);
+  for (let i = 0; i < block.count; i++) appendRollupRow(rows, block, i, kind);
+  return rows;
 }
 
 function emptyStat(): Stat {
   return { sum: 0, count: 0 };
 }
 
-function addStat(stat: Stat, value: number | undefined): void {
-  if (value === undefined) return;
+/** Adds a value; NaN (absent) adds nothing. */
+function addStat(stat: Stat, value: number): void {
+  if (value !== value) return;
   stat.min = stat.min === undefined || value < stat.min ? value : stat.min;
   stat.max = stat.max === undefined || value > stat.max ? value : stat.max;
   stat.sum += value;
@@ -173,38 +176,37 @@ export function bucketStart(ms: number, size: number): number {
   return Math.floor(ms / size) * size;
 }
 
-function sortedUnique(points: EnergyPoint[]): EnergyPoint[] {
+/** The stored points in time order, one per time, `kw` as stored (float4). */
+function sortedUnique(points: readonly EnergyPoint[]): EnergyPoint[] {
   const sorted = [...points].sort((a, b) => a.ts - b.ts);
   const out: EnergyPoint[] = [];
-  for (const p of sorted) if (out.length === 0 || out[out.length - 1]!.ts !== p.ts) out.push(p);
+  for (const p of sorted) if (out.length === 0 || out[out.length - 1]!.ts !== p.ts) out.push({ ts: p.ts, kw: f32(p.kw) });
   return out;
 }
 
-/** A point of the merged series, marked when it is new. */
-interface MergedPoint extends EnergyPoint {
-  fresh: boolean;
-}
-
-const counts = (a: EnergyPoint, b: EnergyPoint) => b.ts - a.ts > 0 && b.ts - a.ts <= MAX_COVERED_INTERVAL_MS;
+/** Whether the interval from a to b counts as covered (contract, section 5). */
+const counts = (aTs: number, bTs: number) => bTs - aTs > 0 && bTs - aTs <= MAX_COVERED_INTERVAL_MS;
 
 /**
- * Adds `sign` × the interval (a, b) to the ten-minute buckets it spans, in
- * proportion to the time it spends in each.
+ * Adds `sign` × the interval from (aTs, aKw) to (bTs, bKw) to the ten-minute
+ * buckets it spans, in proportion to the time it spends in each.
  */
 function addInterval(
-  a: EnergyPoint,
-  b: EnergyPoint,
+  aTs: number,
+  aKw: number,
+  bTs: number,
+  bKw: number,
   sign: 1 | -1,
   bucketOf: (start: number, placeholderTs: number) => RollupDelta,
 ): void {
-  const meanKw = (a.kw + b.kw) / 2;
-  let start = a.ts;
-  while (start < b.ts) {
+  const meanKw = (aKw + bKw) / 2;
+  let start = aTs;
+  while (start < bTs) {
     const bucket = bucketStart(start, TEN_MINUTES_MS);
-    const end = Math.min(b.ts, bucket + TEN_MINUTES_MS);
+    const end = Math.min(bTs, bucket + TEN_MINUTES_MS);
     const part = end - start;
     // A piece lies in the bucket of its start sample or of its end sample, both stored.
-    const delta = bucketOf(bucket, bucket === bucketStart(a.ts, TEN_MINUTES_MS) ? a.ts : b.ts);
+    const delta = bucketOf(bucket, bucket === bucketStart(aTs, TEN_MINUTES_MS) ? aTs : bTs);
     delta.coveredS += (sign * part) / 1000;
     delta.kwh += (sign * meanKw * part) / MS_PER_HOUR;
     start = end;
@@ -213,8 +215,10 @@ function addInterval(
 
 export interface UnitRollupInput {
   unitKey: number;
-  /** Samples this batch actually inserted. */
-  inserted: readonly RollupSample[];
+  /** Samples this batch actually inserted: rows `from` to `to` (exclusive) of `rows`, in time order. */
+  rows: RollupRows;
+  from?: number;
+  to?: number;
   /**
    * Stored samples with `kw` next to the inserted ones, read before the
    * insert: the last within 10 minutes before a window holding every
@@ -226,10 +230,10 @@ export interface UnitRollupInput {
 /**
  * The ten-minute and daily rollup deltas of one unit's inserted samples.
  * @example
- * computeRollupDeltas({ unitKey: 1, stored: [], inserted: [
- *   { ts: 0, rpm: 300, vll: 230, kw: 6 }, { ts: 300_000, rpm: 300, vll: 230, kw: 12 } ] }).tenMinute[0].kwh // 0.75
+ * computeRollupDeltas({ unitKey: 1, stored: [], rows: rollupRowsOf([
+ *   { ts: 0, rpm: 300, vab: 230, kw: 6 }, { ts: 300_000, rpm: 300, vab: 230, kw: 12 } ], 'wind') }).tenMinute[0].kwh // 0.75
  */
-export function computeRollupDeltas({ unitKey, inserted, stored }: UnitRollupInput): {
+export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, stored }: UnitRollupInput): {
   tenMinute: RollupDelta[];
   daily: RollupDelta[];
 } {
@@ -243,57 +247,82 @@ export function computeRollupDeltas({ unitKey, inserted, stored }: UnitRollupInp
     return delta;
   };
 
-  for (const s of inserted) {
-    const delta = bucketOf(bucketStart(s.ts, TEN_MINUTES_MS), s.ts);
+  let freshKw = 0;
+  for (let r = from; r < to; r++) {
+    const ts = rows.ts[r]!;
+    const delta = bucketOf(bucketStart(ts, TEN_MINUTES_MS), ts);
     if (delta.samples === 0) {
-      delta.firstTsMs = s.ts;
-      delta.lastTsMs = s.ts;
+      delta.firstTsMs = ts;
+      delta.lastTsMs = ts;
     } else {
-      if (s.ts < delta.firstTsMs) delta.firstTsMs = s.ts;
-      if (s.ts > delta.lastTsMs) delta.lastTsMs = s.ts;
+      if (ts < delta.firstTsMs) delta.firstTsMs = ts;
+      if (ts > delta.lastTsMs) delta.lastTsMs = ts;
     }
     delta.samples++;
-    addStat(delta.rpm, s.rpm);
-    addStat(delta.vll, s.vll);
-    addStat(delta.amps, s.amps);
-    addStat(delta.kw, s.kw);
-    addStat(delta.statorC, s.statorC);
-    addStat(delta.resource, s.resource);
+    addStat(delta.rpm, rows.rpm[r]!);
+    addStat(delta.vll, rows.vll[r]!);
+    addStat(delta.amps, rows.amps[r]!);
+    addStat(delta.kw, rows.kw[r]!);
+    addStat(delta.statorC, rows.statorC[r]!);
+    addStat(delta.resource, rows.resource[r]!);
+    if (rows.kw[r] === rows.kw[r]) freshKw++;
   }
 
-  const fresh: MergedPoint[] = [];
-  for (const s of inserted) if (s.kw !== undefined) fresh.push({ ts: s.ts, kw: s.kw, fresh: true });
-  if (fresh.length > 0) {
+  if (freshKw > 0) {
     // The stored series and the series with the new points merged in differ only in
     // intervals that touch a new point (added) and the stored intervals a new point
     // now splits (removed); every other interval is in both and changes nothing.
-    const old: MergedPoint[] = sortedUnique(stored.map((p) => ({ ts: p.ts, kw: f32(p.kw) }))).map((p) => ({ ...p, fresh: false }));
-    fresh.sort((a, b) => a.ts - b.ts);
-    const merged: MergedPoint[] = [];
-    for (let i = 0, j = 0; i < old.length || j < fresh.length; ) {
+    // The two series are walked together, point by point, without building the merged one.
+    const old = sortedUnique(stored);
+    let i = 0;
+    let r = from;
+    const nextFresh = () => {
+      while (r < to && rows.kw[r] !== rows.kw[r]) r++;
+    };
+    nextFresh();
+    let havePrev = false;
+    let prevTs = 0;
+    let prevKw = 0;
+    let prevFresh = false;
+    let haveLastOld = false;
+    let lastOldTs = 0;
+    let lastOldKw = 0;
+    let splitSinceLastOld = false;
+    while (i < old.length || r < to) {
       const o = old[i];
-      const n = fresh[j];
-      if (n === undefined || (o !== undefined && o.ts <= n.ts)) {
+      let ts: number;
+      let kw: number;
+      let fresh: boolean;
+      if (r >= to || (o !== undefined && o.ts <= rows.ts[r]!)) {
         // A stored point and a new one at the same time: the insert skipped it, keep the stored.
-        if (n !== undefined && o!.ts === n.ts) j++;
-        merged.push(o!);
+        if (r < to && o!.ts === rows.ts[r]) {
+          r++;
+          nextFresh();
+        }
+        ts = o!.ts;
+        kw = o!.kw;
+        fresh = false;
         i++;
       } else {
-        if (merged.length === 0 || merged[merged.length - 1]!.ts !== n.ts) merged.push(n);
-        j++;
+        ts = rows.ts[r]!;
+        kw = rows.kw[r]!;
+        fresh = true;
+        r++;
+        nextFresh();
+        if (havePrev && prevTs === ts) continue;
       }
-    }
-    let lastOld: MergedPoint | undefined;
-    let splitSinceLastOld = false;
-    for (let k = 0; k < merged.length; k++) {
-      const p = merged[k]!;
-      const before = merged[k - 1];
-      if (before && (before.fresh || p.fresh) && counts(before, p)) addInterval(before, p, 1, bucketOf);
-      if (!p.fresh) {
-        if (lastOld && splitSinceLastOld && counts(lastOld, p)) addInterval(lastOld, p, -1, bucketOf);
-        lastOld = p;
+      if (havePrev && (prevFresh || fresh) && counts(prevTs, ts)) addInterval(prevTs, prevKw, ts, kw, 1, bucketOf);
+      if (!fresh) {
+        if (haveLastOld && splitSinceLastOld && counts(lastOldTs, ts)) addInterval(lastOldTs, lastOldKw, ts, kw, -1, bucketOf);
+        haveLastOld = true;
+        lastOldTs = ts;
+        lastOldKw = kw;
         splitSinceLastOld = false;
       } else splitSinceLastOld = true;
+      havePrev = true;
+      prevTs = ts;
+      prevKw = kw;
+      prevFresh = fresh;
     }
   }
 

@@ -19,7 +19,7 @@ import {
   type UnitEntry,
   type UnitSeen,
 } from './queries';
-import { computeRollupDeltas, rollupSampleFromBlock, type RollupDelta, type RollupSample } from './rollups';
+import { appendRollupRow, computeRollupDeltas, createRollupRows, type RollupDelta } from './rollups';
 import type { SampleBlock } from './sample-block';
 import type { IngestDatabase, SqlRunner } from './sql';
 import { pairKey, type UnitDirectory } from './unit-directory';
@@ -240,7 +240,8 @@ export async function writeBatch({
       blocks: new Array<SampleBlock>(fresh.length),
       index: new Int32Array(fresh.length),
     };
-    const insertedByUnit = new Map<number, RollupSample[]>();
+    // Rows in `fresh` order: by unit, then time, as the rollups want them.
+    const rollupRows = createRollupRows(fresh.length);
     let newestTsMs: number | undefined;
     fresh.forEach((ref, r) => {
       const block = blockOf(ref);
@@ -250,23 +251,25 @@ export async function writeBatch({
       rows.unitKeys[r] = unitKey;
       rows.blocks[r] = block;
       rows.index[r] = i;
-      let list = insertedByUnit.get(unitKey);
-      if (!list) insertedByUnit.set(unitKey, (list = []));
-      list.push(rollupSampleFromBlock(block, i, unitByKey.get(unitKey)!.kind));
+      appendRollupRow(rollupRows, block, i, unitByKey.get(unitKey)!.kind);
       if (newestTsMs === undefined || ts > newestTsMs) newestTsMs = ts;
     });
     phase('columns');
-    await writeNewSamples({ tx, rows, byInsert });
-    phase('samples');
-
+    // The deltas are worked out before the samples go out: what they need is known.
     const tenMinute: RollupDelta[] = [];
     const daily: RollupDelta[] = [];
-    for (const [unitKey, list] of insertedByUnit) {
-      const deltas = computeRollupDeltas({ unitKey, inserted: list, stored: stored.get(unitKey)?.energy ?? [] });
-      tenMinute.push(...deltas.tenMinute);
-      daily.push(...deltas.daily);
+    for (let from = 0; from < fresh.length; ) {
+      const unitKey = rows.unitKeys[from]!;
+      let to = from + 1;
+      while (to < fresh.length && rows.unitKeys[to] === unitKey) to++;
+      const deltas = computeRollupDeltas({ unitKey, rows: rollupRows, from, to, stored: stored.get(unitKey)?.energy ?? [] });
+      for (const d of deltas.tenMinute) tenMinute.push(d);
+      for (const d of deltas.daily) daily.push(d);
+      from = to;
     }
     phase('deltas');
+    await writeNewSamples({ tx, rows, byInsert });
+    phase('samples');
     await inOrder(tx, [
       () => upsertRollupDeltas({ tx, table: 'telemetry_rollups_10m', deltas: tenMinute }),
       () => upsertRollupDeltas({ tx, table: 'telemetry_rollups_daily', deltas: daily }),
