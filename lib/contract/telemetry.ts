@@ -87,6 +87,14 @@ export function parseTimestampMs(value: unknown): number | undefined {
  * check (tests and offline logs pass their own).
  */
 export function telemetrySampleSchema(nowMs: () => number = Date.now) {
+  // z.compile: zod's own generated parser for this schema, some 4× faster a sample than
+  // its interpreter; a sample it does not accept goes to the interpreter, whose issues
+  // (and so the words below) are the same. Tested against the interpreter in telemetry.test.ts.
+  return z.compile(sampleObject(nowMs));
+}
+
+/** The sample schema as written (what {@link telemetrySampleSchema} compiles). */
+export function sampleObject(nowMs: () => number = Date.now) {
   return z.object({
     ts: z.unknown().transform((value, ctx) => {
       const ms = parseTimestampMs(value);

@@ -136,13 +136,25 @@ function emptyStat(): Stat {
   return { sum: 0, count: 0 };
 }
 
-/** Adds a value; NaN (absent) adds nothing. */
-function addStat(stat: Stat, value: number): void {
-  if (value !== value) return;
-  stat.min = stat.min === undefined || value < stat.min ? value : stat.min;
-  stat.max = stat.max === undefined || value > stat.max ? value : stat.max;
-  stat.sum += value;
-  stat.count++;
+/** The quantities of a row that the rollups keep statistics of, in {@link STAT_NAMES} order. */
+const statColumns = (rows: RollupRows) => [rows.rpm, rows.vll, rows.amps, rows.kw, rows.statorC, rows.resource] as const;
+const STAT_NAMES = ['rpm', 'vll', 'amps', 'kw', 'statorC', 'resource'] as const;
+/** Minimum, maximum, sum and count of each of the six quantities, in one Float64Array (no boxed numbers per row). */
+const ACC_WIDTH = 4;
+
+function resetAccumulator(acc: Float64Array): void {
+  for (let k = 0; k < STAT_NAMES.length; k++) {
+    acc[k * ACC_WIDTH] = Infinity;
+    acc[k * ACC_WIDTH + 1] = -Infinity;
+    acc[k * ACC_WIDTH + 2] = 0;
+    acc[k * ACC_WIDTH + 3] = 0;
+  }
+}
+
+function statOf(acc: Float64Array, k: number): Stat {
+  const count = acc[k * ACC_WIDTH + 3]!;
+  if (count === 0) return emptyStat();
+  return { min: acc[k * ACC_WIDTH]!, max: acc[k * ACC_WIDTH + 1]!, sum: acc[k * ACC_WIDTH + 2]!, count };
 }
 
 function mergeStat(into: Stat, from: Stat): void {
@@ -247,26 +259,49 @@ export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, 
     return delta;
   };
 
+  // Rows are in time order, so each bucket's rows come together: their statistics are
+  // gathered in an accumulator and handed to the bucket's delta when the bucket ends.
+  const columns = statColumns(rows);
+  const acc = new Float64Array(STAT_NAMES.length * ACC_WIDTH);
   let freshKw = 0;
+  let current = Number.NaN;
+  let samples = 0;
+  let firstTs = 0;
+  let lastTs = 0;
+  const endBucket = () => {
+    if (samples === 0) return;
+    const delta = bucketOf(current, firstTs);
+    if (delta.samples === 0 || firstTs < delta.firstTsMs) delta.firstTsMs = firstTs;
+    if (delta.samples === 0 || lastTs > delta.lastTsMs) delta.lastTsMs = lastTs;
+    delta.samples += samples;
+    STAT_NAMES.forEach((name, k) => mergeStat(delta[name], statOf(acc, k)));
+  };
   for (let r = from; r < to; r++) {
     const ts = rows.ts[r]!;
-    const delta = bucketOf(bucketStart(ts, TEN_MINUTES_MS), ts);
-    if (delta.samples === 0) {
-      delta.firstTsMs = ts;
-      delta.lastTsMs = ts;
-    } else {
-      if (ts < delta.firstTsMs) delta.firstTsMs = ts;
-      if (ts > delta.lastTsMs) delta.lastTsMs = ts;
+    const bucket = bucketStart(ts, TEN_MINUTES_MS);
+    if (bucket !== current) {
+      endBucket();
+      current = bucket;
+      resetAccumulator(acc);
+      samples = 0;
+      firstTs = ts;
+      lastTs = ts;
     }
-    delta.samples++;
-    addStat(delta.rpm, rows.rpm[r]!);
-    addStat(delta.vll, rows.vll[r]!);
-    addStat(delta.amps, rows.amps[r]!);
-    addStat(delta.kw, rows.kw[r]!);
-    addStat(delta.statorC, rows.statorC[r]!);
-    addStat(delta.resource, rows.resource[r]!);
+    samples++;
+    if (ts < firstTs) firstTs = ts;
+    if (ts > lastTs) lastTs = ts;
+    for (let k = 0; k < columns.length; k++) {
+      const v = columns[k]![r]!;
+      if (v !== v) continue; // NaN: absent
+      const at = k * ACC_WIDTH;
+      if (v < acc[at]!) acc[at] = v;
+      if (v > acc[at + 1]!) acc[at + 1] = v;
+      acc[at + 2]! += v;
+      acc[at + 3]!++;
+    }
     if (rows.kw[r] === rows.kw[r]) freshKw++;
   }
+  endBucket();
 
   if (freshKw > 0) {
     // The stored series and the series with the new points merged in differ only in
@@ -341,12 +376,7 @@ export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, 
     into.samples += d.samples;
     into.coveredS += d.coveredS;
     into.kwh += d.kwh;
-    mergeStat(into.rpm, d.rpm);
-    mergeStat(into.vll, d.vll);
-    mergeStat(into.amps, d.amps);
-    mergeStat(into.kw, d.kw);
-    mergeStat(into.statorC, d.statorC);
-    mergeStat(into.resource, d.resource);
+    for (const name of STAT_NAMES) mergeStat(into[name], d[name]);
   }
   return { tenMinute: [...tenMinute.values()], daily: [...daily.values()] };
 }
