@@ -14,7 +14,7 @@ import type { Receipt } from './connections';
 import { CommitTimeoutError, isTransientDbError, type IngestDatabase } from './sql';
 import { EMPTY_BLOCK } from './sample-block';
 import type { UnitDirectory } from './unit-directory';
-import { writeBatch, type BatchResult, type DecodedMessage } from './writer';
+import { prepareBatch, writePrepared, type BatchResult, type DecodedMessage, type PreparedBatch } from './writer';
 
 /** A decoded message waiting for its batch, with the means to acknowledge it. */
 export interface PendingMessage extends DecodedMessage {
@@ -203,8 +203,8 @@ export function createBatcher(options: BatcherOptions) {
   }
 
   /** One write, with a watchdog on PostgreSQL: a connection can hang rather than fail. */
-  async function write(batch: PendingMessage[], byInsert: boolean): Promise<BatchResult> {
-    const writing = writeBatch({ database, directory, messages: batch, byInsert });
+  async function write(prepared: Promise<PreparedBatch>, byInsert: boolean): Promise<BatchResult> {
+    const writing = prepared.then((batch) => writePrepared({ database, batch, byInsert }));
     if (database.backend !== 'postgres') return writing;
     let timer: NodeJS.Timeout | undefined;
     try {
@@ -220,6 +220,19 @@ export function createBatcher(options: BatcherOptions) {
     }
   }
 
+  /** Starts making `batch` ready (see prepareBatch); a failure shows when it is written. */
+  function prepare(batch: PendingMessage[]): Promise<PreparedBatch> {
+    const prepared = prepareBatch({ directory, messages: batch });
+    prepared.catch(() => {});
+    return prepared;
+  }
+
+  /** A batch taken from the pending messages, and its preparation (started when taken). */
+  interface Taken {
+    batch: PendingMessage[];
+    prepared?: Promise<PreparedBatch>;
+  }
+
   type Attempt = { ok: true } | { ok: false; error: unknown } | { aborted: true };
 
   /**
@@ -227,19 +240,23 @@ export function createBatcher(options: BatcherOptions) {
    * database with backoff; a refusal for any other reason comes back.
    * `byInsert` writes samples by INSERT, whose refusals say what was wrong.
    */
-  async function attempt(batch: PendingMessage[], byInsert = false): Promise<Attempt> {
+  async function attempt(batch: PendingMessage[], byInsert = false, prepared?: Promise<PreparedBatch>): Promise<Attempt> {
     let delay = retryMs;
     for (;;) {
-      batch = dropDead(batch);
+      const live = dropDead(batch);
+      // A batch made ready before some of its messages' connection closed is made again without them.
+      if (live.length !== batch.length) prepared = undefined;
+      batch = live;
       if (batch.length === 0) return { ok: true };
       const startedAt = now();
       try {
-        const result = await write(batch, byInsert);
+        const result = await write((prepared ??= prepare(batch)), byInsert);
         noteRecovery();
         account(result, batch, startedAt);
         for (const m of batch) m.receipt.ack();
         return { ok: true };
       } catch (error) {
+        prepared = undefined;
         // A fresh client: a connection that failed may never send again, and a fresh
         // partition cache makes any partition dropped meanwhile again.
         database.reset();
@@ -257,10 +274,10 @@ export function createBatcher(options: BatcherOptions) {
   }
 
   /** Commits a batch; a batch the database refuses twice is committed message by message. */
-  async function commitBatch(batch: PendingMessage[]): Promise<void> {
+  async function commitBatch({ batch, prepared }: Taken): Promise<void> {
     const weight = batch.reduce((s, m) => s + weightOf(m), 0);
     try {
-      let result = await attempt(batch);
+      let result = await attempt(batch, false, prepared);
       if ('ok' in result && !result.ok) {
         log.warn('database refused a batch; retrying it once', { error: result.error, messages: batch.length });
         await sleep(retryMs);
@@ -290,6 +307,24 @@ export function createBatcher(options: BatcherOptions) {
     }
   }
 
+  /** Takes the next batch and starts making it ready. */
+  function takeNext(): Taken {
+    const batch = take();
+    return { batch, prepared: prepare(batch) };
+  }
+
+  /**
+   * Takes the next batch and makes it ready once the event loop has turned:
+   * by then the batch in the database has sent its first statements, and
+   * the work fills the wait for their answer instead of delaying them.
+   */
+  function takeNextLater(): Taken {
+    const batch = take();
+    const prepared = new Promise<void>((resolve) => setImmediate(resolve)).then(() => prepareBatch({ directory, messages: batch }));
+    prepared.catch(() => {});
+    return { batch, prepared };
+  }
+
   async function commitLoop(): Promise<void> {
     if (committing) return committing;
     if (timer) {
@@ -297,15 +332,25 @@ export function createBatcher(options: BatcherOptions) {
       timer = undefined;
     }
     committing = (async () => {
+      let next: Taken | undefined;
       try {
-        while (pending.length > 0 && !stopAbort) {
-          const batch = take();
-          await commitBatch(batch);
+        next = pending.length > 0 && !stopAbort ? takeNext() : undefined;
+        while (next && !stopAbort) {
+          const current = next;
+          next = undefined;
+          const done = commitBatch(current);
+          // While this batch is in the database, the next full one is made ready (CPU
+          // work that would otherwise come between two transactions).
+          if (!stopped && pendingWeight >= batchSamples) next = takeNextLater();
+          await done;
           releaseRoom();
-          // Keep batches full under load: commit again at once only when a full batch waits.
-          if (!stopped && pendingWeight < batchSamples) break;
+          // Keep batches full under load: commit again at once only when a full batch waits
+          // (or, when draining, anything does).
+          if (!next && !stopAbort && (stopped ? pending.length > 0 : pendingWeight >= batchSamples)) next = takeNext();
         }
       } finally {
+        // Taken but not written (stopping without draining): left for the broker to deliver again.
+        if (next) inFlightWeight -= next.batch.reduce((s, m) => s + weightOf(m), 0);
         committing = undefined;
         releaseRoom();
         schedule();
