@@ -1,12 +1,19 @@
+import { QUARANTINE_COUNT_CAP } from '../lib/fleet/queries';
 import { loadFleetOverview } from '../lib/fleet/overview';
 import { VerdictBadge } from './_components/verdict-badge';
 import { ago } from './_components/format';
 
 export const dynamic = 'force-dynamic';
 
+/** A count of set-aside rows; the query stops counting past the cap. */
+function setAsideCount(n: number): string {
+  return n > QUARANTINE_COUNT_CAP ? `more than ${QUARANTINE_COUNT_CAP.toLocaleString('en-GB')}` : n.toLocaleString('en-GB');
+}
+
 export default async function FleetPage() {
   const fleet = await loadFleetOverview();
   const now = new Date();
+  const { retentionDays } = fleet;
   return (
     <>
       <section className="summary" aria-label="fleet summary">
@@ -77,9 +84,15 @@ export default async function FleetPage() {
       {fleet.quarantine.total > 0 ? (
         <section className="set-aside" data-testid="set-aside">
           <h2>
-            Telemetry set aside <span className="muted">{fleet.quarantine.lastDay} in the last day, {fleet.quarantine.total} in all</span>
+            Telemetry set aside{' '}
+            <span className="muted">
+              {setAsideCount(fleet.quarantine.lastDay)} in the last day, {setAsideCount(fleet.quarantine.total)} in the last {retentionDays} days
+            </span>
           </h2>
-          <p className="note">Telemetry that could not be stored (invalid, or from a unit not registered) is kept here with the reason. Newest first:</p>
+          <p className="note">
+            Telemetry that could not be stored (invalid, or from a unit not registered) is kept here with the reason for {retentionDays} days
+            (RETENTION_DAYS). Newest first:
+          </p>
           <ul>
             {fleet.quarantine.recent.map((q, i) => (
               <li key={i}>

@@ -2,6 +2,7 @@
  * The fleet list of the home page, read from this process's database.
  */
 import { getDatabase } from '../../db/client';
+import { getConfig } from '../config/env';
 import { getComponentState } from '../server/registry';
 import { getFleetOverview, getQuarantineSummary, type FleetOverviewSite, type QuarantineSummary } from './queries';
 
@@ -12,6 +13,8 @@ export interface FleetOverview {
   attentionCount: number;
   /** Telemetry set aside as invalid, with the newest reasons. */
   quarantine: QuarantineSummary;
+  /** How long raw samples and set-aside telemetry are kept (RETENTION_DAYS). */
+  retentionDays: number;
   /** What the demo fleet is doing, or undefined when it is not part of this process. */
   demo?: { status: string; phase?: string };
 }
@@ -28,6 +31,7 @@ export async function loadFleetOverview(): Promise<FleetOverview> {
     unitCount: units.length,
     onlineCount: units.filter((u) => u.presence === 'online').length,
     quarantine,
+    retentionDays: getConfig().RETENTION_DAYS,
     attentionCount: units.filter((u) => u.verdict !== null && u.verdict !== 'healthy' && u.verdict !== 'insufficient-data').length,
     demo: demo ? { status: demo.status, phase: demo.phase } : undefined,
   };

@@ -2,7 +2,7 @@
  * Data access for sites and units.
  */
 import { asc, desc, eq, sql } from 'drizzle-orm';
-import type { Db } from '../../db/client';
+import { rowsOf, type Db } from '../../db/client';
 import { quarantine, sites, units, unitStatus, unitHealth, type SiteRow, type UnitRow } from '../../db/schema';
 import type { Fleet, Nameplate } from '../contract/nameplate';
 
@@ -183,24 +183,30 @@ export async function getFleetOverview({ db }: { db: Db }): Promise<FleetOvervie
   }));
 }
 
+/** Counts of set-aside telemetry stop here: a device that floods the table must not make every page render scan it. */
+export const QUARANTINE_COUNT_CAP = 10_000;
+
 export interface QuarantineSummary {
+  /** Rows kept (retention: RETENTION_DAYS), at most {@link QUARANTINE_COUNT_CAP} + 1 (meaning "more than the cap"). */
   total: number;
+  /** Rows that arrived in the last day, capped the same way. */
   lastDay: number;
   recent: Array<{ receivedAt: Date; topic: string; reason: string }>;
 }
 
 /** How much telemetry was set aside as invalid, and the newest reasons, for the operator. */
 export async function getQuarantineSummary({ db, recentLimit = 5 }: { db: Db; recentLimit?: number }): Promise<QuarantineSummary> {
-  const [counts] = await db
-    .select({
-      total: sql<number>`count(*)::int`,
-      lastDay: sql<number>`(count(*) filter (where ${quarantine.receivedAt} > now() - interval '1 day'))::int`,
-    })
-    .from(quarantine);
+  const limit = QUARANTINE_COUNT_CAP + 1;
+  // Each count reads at most cap + 1 rows (the last day by the received_at index).
+  const [counts] = rowsOf<{ total: number; lastDay: number }>(
+    await db.execute(sql`select
+      (select count(*) from (select 1 from ${quarantine} limit ${limit}) t)::int as "total",
+      (select count(*) from (select 1 from ${quarantine} where ${quarantine.receivedAt} > now() - interval '1 day' limit ${limit}) d)::int as "lastDay"`),
+  );
   const recent = await db
     .select({ receivedAt: quarantine.receivedAt, topic: quarantine.topic, reason: quarantine.reason })
     .from(quarantine)
     .orderBy(desc(quarantine.id))
     .limit(recentLimit);
-  return { total: counts?.total ?? 0, lastDay: counts?.lastDay ?? 0, recent };
+  return { total: Number(counts?.total ?? 0), lastDay: Number(counts?.lastDay ?? 0), recent };
 }

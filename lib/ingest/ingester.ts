@@ -64,7 +64,7 @@ export interface IngesterState extends ComponentState {
   buffer: { samples: number; limit: number; fillPct: number };
   /** This process's memory now and at its peak (sampled each second), MB. */
   memory: { rssMb: number; heapUsedMb: number; peakRssMb: number; peakHeapUsedMb: number; peakExternalMb: number };
-  retention: { days: number; lastRunAt?: string; droppedPartitions: number; lastError?: string };
+  retention: { days: number; lastRunAt?: string; droppedPartitions: number; quarantineRowsDeleted: number; lastError?: string };
 }
 
 export interface Ingester {
@@ -106,7 +106,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
     bufferSamples: options.bufferSamples,
   });
   const decoder = createTelemetryDecoder({ retentionDays });
-  const retention: IngesterState['retention'] = { days: retentionDays, droppedPartitions: 0 };
+  const retention: IngesterState['retention'] = { days: retentionDays, droppedPartitions: 0, quarantineRowsDeleted: 0 };
   let stopped = false;
   const timers: NodeJS.Timeout[] = [];
 
@@ -115,9 +115,13 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       const result = await runTelemetryMaintenance({ db: database.db(), retentionDays });
       retention.lastRunAt = new Date().toISOString();
       retention.droppedPartitions += result.dropped.length;
+      retention.quarantineRowsDeleted += result.quarantineDeleted;
       retention.lastError = undefined;
       if (result.dropped.length > 0) {
         log.info('raw samples past retention dropped', { partitions: result.dropped, retentionDays });
+      }
+      if (result.quarantineDeleted > 0) {
+        log.info('telemetry set aside past retention deleted', { rows: result.quarantineDeleted, retentionDays });
       }
       return true;
     } catch (error) {

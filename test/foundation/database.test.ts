@@ -6,6 +6,7 @@ import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDatabase, rowsOf } from '../../db/client';
 import { dropPartitionsBefore, ensureMonthlyPartitions, listPartitions, partitionName } from '../../db/partitions';
+import { deleteQuarantineBefore } from '../../lib/ingest/maintenance';
 import { createTestDatabase, realDatabaseUrl, type TestDatabase } from '../support/backend';
 
 let testDb: TestDatabase;
@@ -69,6 +70,22 @@ describe(`database schema on ${realDatabaseUrl ? 'PostgreSQL' : 'PGlite'}`, () =
     expect(dropped).toEqual(['telemetry_samples_y2021m05']);
     const left = rowsOf<{ n: number }>(await db.execute(sql`select count(*)::int as n from telemetry_samples`));
     expect(left[0]?.n).toBe(0);
+  });
+
+  it('deletes telemetry set aside before the retention cutoff, by when it arrived, and keeps the rest', async () => {
+    const db = testDb.handle.db;
+    for (const [at, topic] of [
+      ['2021-03-01T00:00:00Z', 'millrace/old/one/telemetry'],
+      ['2021-12-31T23:59:59Z', 'millrace/old/two/telemetry'],
+      ['2022-01-01T00:00:00Z', 'millrace/kept/three/telemetry'],
+    ] as const) {
+      await db.execute(
+        sql`insert into quarantine (received_at, topic, payload, payload_bytes, reason) values (${at}::timestamptz, ${topic}, '{}', 2, 'test row')`,
+      );
+    }
+    expect(await deleteQuarantineBefore({ db, cutoffMs: Date.UTC(2022, 0, 1) })).toBe(2);
+    const left = rowsOf<{ topic: string }>(await db.execute(sql`select topic from quarantine where reason = 'test row'`));
+    expect(left.map((r) => r.topic)).toEqual(['millrace/kept/three/telemetry']);
   });
 
   it('applies migrations idempotently', async () => {
