@@ -59,6 +59,8 @@ export interface BatcherState {
   bufferedSamples: number;
   bufferLimit: number;
   committing: boolean;
+  /** Of `bufferedSamples`, those in batches taken for the database (the rest wait for a batch). */
+  committingSamples: number;
   database: { reachable: boolean; outageSinceMs?: number; outages: number; lastError?: string };
   /** `lagMs`: commit time minus the newest sample stored, of the last batch that stored samples. */
   lastBatch?: { samples: number; rows: number; ms: number; lagMs?: number; waitMs: number; atMs: number };
@@ -398,6 +400,7 @@ export function createBatcher(options: BatcherOptions) {
         bufferedSamples: held(),
         bufferLimit: bufferSamples,
         committing: committing !== undefined,
+        committingSamples: inFlightWeight,
         database: { ...dbState },
         lastBatch: lastBatch && { ...lastBatch },
       };

@@ -61,7 +61,8 @@ export interface IngesterState extends ComponentState {
   /** Commit time minus the receipt of the oldest message of the last batch, ms. */
   commitDelayMs?: number;
   lastBatch?: { samples: number; rows: number; ms: number; at: string };
-  buffer: { samples: number; limit: number; fillPct: number };
+  /** Samples held uncommitted, of which `committing` are in a batch being written. */
+  buffer: { samples: number; limit: number; fillPct: number; committing: number; writing: boolean };
   /** This process's memory now and at its peak (sampled each second), MB. */
   memory: { rssMb: number; heapUsedMb: number; peakRssMb: number; peakHeapUsedMb: number; peakExternalMb: number };
   retention: { days: number; lastRunAt?: string; droppedPartitions: number; quarantineRowsDeleted: number; lastError?: string };
@@ -259,7 +260,7 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
       lagMs: b.lastBatch?.lagMs,
       commitDelayMs: b.lastBatch?.waitMs,
       lastBatch: b.lastBatch && { samples: b.lastBatch.samples, rows: b.lastBatch.rows, ms: b.lastBatch.ms, at: new Date(b.lastBatch.atMs).toISOString() },
-      buffer: { samples: b.bufferedSamples, limit: b.bufferLimit, fillPct },
+      buffer: { samples: b.bufferedSamples, limit: b.bufferLimit, fillPct, committing: b.committingSamples, writing: b.committing },
       memory: { ...memory },
       retention: { ...retention },
     };

@@ -8,7 +8,7 @@
 import type { TelemetrySample } from '../contract/telemetry';
 import { VALUE_FIELDS, columnOfField, type ValueField } from '../contract/telemetry';
 import type { EnergyPoint, RollupDelta, Stat } from './rollups';
-import { BLOCK_WIDTH, type SampleBlock } from './sample-block';
+import { BLOCK_WIDTH, sampleBlockOf, type SampleBlock } from './sample-block';
 import type { SqlRunner } from './sql';
 
 
@@ -51,13 +51,14 @@ export async function insertSampleColumns({ tx, columns }: { tx: SqlRunner; colu
 
 /** {@link insertSampleColumns} for rows of sample objects (tools, tests, benchmarks). */
 export async function insertSampleRows({ tx, rows }: { tx: SqlRunner; rows: readonly SampleRow[] }): Promise<Array<{ unitKey: number; ts: number }>> {
-  const columns: SampleColumns = { unitKeys: [], ts: [], values: SAMPLE_COLUMNS.map(() => []) };
-  for (const { unitKey, sample } of rows) {
-    columns.unitKeys.push(unitKey);
-    columns.ts.push(sample.ts);
-    for (let c = 0; c < SAMPLE_COLUMNS.length; c++) columns.values[c]!.push(sample[SAMPLE_COLUMNS[c]![0]] ?? null);
-  }
-  return insertSampleColumns({ tx, columns });
+  const block = sampleBlockOf(rows.map((r) => r.sample));
+  const refs: SampleRowRefs = {
+    count: rows.length,
+    unitKeys: Int32Array.from(rows, (r) => r.unitKey),
+    blocks: new Array<SampleBlock>(rows.length).fill(block),
+    index: Int32Array.from(rows, (_, i) => i),
+  };
+  return insertSampleColumns({ tx, columns: columnsOfRefs(refs) });
 }
 
 /** Advisory lock space of the ingest transactions (any fixed number unique to millrace). */
@@ -166,6 +167,16 @@ export async function writeNewSamples({ tx, rows, byInsert = false }: { tx: SqlR
     await tx.copyIn(COPY_SAMPLES, copyBinary(rows));
     return;
   }
+  const columns = columnsOfRefs(rows);
+  const count = tx.command ? await tx.command(INSERT_NEW_SAMPLES, [columns.unitKeys, columns.ts, ...columns.values]) : n;
+  if (count !== n) {
+    throw Object.assign(new Error(`${n - count} of ${n} rows were stored meanwhile by another writer`), { code: '40001' });
+  }
+}
+
+/** The rows as whole columns, in block order (null where a value is absent). */
+function columnsOfRefs(rows: SampleRowRefs): SampleColumns {
+  const n = rows.count;
   const columns: SampleColumns = { unitKeys: new Array(n), ts: new Array(n), values: [] };
   for (let f = 0; f < BLOCK_WIDTH; f++) columns.values.push(new Array<number | null>(n));
   for (let r = 0; r < n; r++) {
@@ -178,10 +189,7 @@ export async function writeNewSamples({ tx, rows, byInsert = false }: { tx: SqlR
       columns.values[f]![r] = Number.isNaN(v) ? null : v;
     }
   }
-  const count = tx.command ? await tx.command(INSERT_NEW_SAMPLES, [columns.unitKeys, columns.ts, ...columns.values]) : n;
-  if (count !== n) {
-    throw Object.assign(new Error(`${n - count} of ${n} rows were stored meanwhile by another writer`), { code: '40001' });
-  }
+  return columns;
 }
 
 /** Milliseconds from 1970 to PostgreSQL's epoch, 2000-01-01 UTC. */

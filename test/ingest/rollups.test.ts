@@ -217,7 +217,7 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
     expect(state.database.reachable).toBe(true);
     expect(state.counters.rowsCommitted).toBe(expectedRows);
     expect(state.counters.batches).toBeGreaterThan(1);
-    expect(state.buffer).toEqual({ samples: 0, limit: 5000, fillPct: 0 });
+    expect(state.buffer).toEqual({ samples: 0, limit: 5000, fillPct: 0, committing: 0, writing: false });
     expect(state.broker.connected).toBe(state.broker.connections.length);
     expect(typeof state.lagMs).toBe('number');
   });
