@@ -58,7 +58,7 @@ export const envSchema = z.object({
     .regex(/^[A-Za-z0-9._-]{1,64}$/, 'expected letters, digits, dot, dash or underscore, at most 64')
     .default('millrace-ingest'),
   INGEST_CONNECTIONS: positiveInt('a number of MQTT connections', 64).default(4),
-  INGEST_BATCH_SAMPLES: positiveInt('a number of samples per batch', 100_000).default(20_000),
+  INGEST_BATCH_SAMPLES: positiveInt('a number of samples per batch', 100_000).default(40_000),
   INGEST_BATCH_MS: positiveInt('a number of milliseconds', 10_000).default(200),
   INGEST_BUFFER_SAMPLES: positiveInt('a number of samples', 1_000_000).default(200_000),
   RETENTION_DAYS: positiveInt('a number of days', 36_500).default(90),

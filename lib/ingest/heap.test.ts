@@ -3,7 +3,7 @@ import { heapProblem } from './heap';
 
 describe('heapProblem', () => {
   it('accepts the default buffer under the heap bound of the ingest script (184 MB on Node 20)', () => {
-    expect(heapProblem(200_000, 20_000, 184)).toBeUndefined();
+    expect(heapProblem(200_000, 40_000, 184)).toBeUndefined();
   });
 
   it('refuses a buffer the heap cannot hold, naming the variable and the flag to raise', () => {

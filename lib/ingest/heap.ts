@@ -14,7 +14,7 @@ export const HEAP_BYTES_PER_SAMPLE = 320;
  * undefined. The ingest script bounds the heap (package.json) so that the
  * process stays small; a larger INGEST_BUFFER_SAMPLES needs a larger bound,
  * and finding out at start beats running out of memory during an outage.
- * @example heapProblem(200_000, 20_000, 184) // undefined
+ * @example heapProblem(200_000, 40_000, 184) // undefined
  */
 export function heapProblem(bufferSamples: number, batchSamples: number, limitMb = getHeapStatistics().heap_size_limit / 1048576): string | undefined {
   const needMb = BASE_HEAP_MB + ((bufferSamples + batchSamples) * HEAP_BYTES_PER_SAMPLE) / 1048576;
