@@ -333,10 +333,14 @@ export function createBatcher(options: BatcherOptions) {
       clearTimeout(timer);
       timer = undefined;
     }
-    committing = (async () => {
-      let next: Taken | undefined;
+    // Nothing to commit (the batch timer can fire after every waiting message was let go
+    // because its connection closed). Without this the loop below would end before
+    // `committing` is assigned, and stay assigned for ever: no batch would start again.
+    if (pending.length === 0 || stopAbort) return;
+    let ended = false;
+    const loop = (async () => {
+      let next: Taken | undefined = takeNext();
       try {
-        next = pending.length > 0 && !stopAbort ? takeNext() : undefined;
         while (next && !stopAbort) {
           const current = next;
           next = undefined;
@@ -353,12 +357,15 @@ export function createBatcher(options: BatcherOptions) {
       } finally {
         // Taken but not written (stopping without draining): left for the broker to deliver again.
         if (next) inFlightWeight -= next.batch.reduce((s, m) => s + weightOf(m), 0);
+        ended = true;
         committing = undefined;
         releaseRoom();
         schedule();
       }
     })();
-    return committing;
+    // The loop always waits for its first batch, so it cannot have ended yet; checked all the same.
+    if (!ended) committing = loop;
+    return loop;
   }
 
   return {
