@@ -105,8 +105,12 @@ class DeliveryReceipt implements Receipt {
   }
 }
 
-/** mqtt.js logs through `debug`, whose every call gathers its arguments into an array even when off. */
-const quiet = () => {};
+/**
+ * mqtt.js logs through `debug`, whose every call gathers its arguments into
+ * an array even when off (a dozen calls a message); left on only when asked
+ * for (DEBUG=mqttjs*).
+ */
+const mqttLog = /mqttjs|^\*$/.test(process.env.DEBUG ?? '') ? {} : { log: () => {} };
 
 export interface ConnectionPoolOptions {
   brokerUrl: string;
@@ -197,7 +201,7 @@ export function openConnectionPool(options: ConnectionPoolOptions) {
     states.push(state);
     const clientOptions: IClientOptions = {
       clientId: id,
-      log: quiet,
+      ...mqttLog,
       protocolVersion: mqtt5 ? 5 : 4,
       clean: false,
       keepalive: keepaliveSeconds,
