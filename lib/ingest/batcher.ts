@@ -309,20 +309,16 @@ export function createBatcher(options: BatcherOptions) {
     }
   }
 
-  /** Takes the next batch and starts making it ready. */
-  function takeNext(): Taken {
-    const batch = take();
-    return { batch, prepared: prepare(batch) };
-  }
-
   /**
-   * Takes the next batch and makes it ready once the event loop has turned:
-   * by then the batch in the database has sent its first statements, and
-   * the work fills the wait for their answer instead of delaying them.
+   * Takes the next batch and starts making it ready: at once, or, with
+   * `afterTurn`, once the event loop has turned, so that the batch in the
+   * database has sent its first statements and the work fills the wait for
+   * their answer instead of delaying them.
    */
-  function takeNextLater(): Taken {
+  function takeNext(afterTurn = false): Taken {
     const batch = take();
-    const prepared = new Promise<void>((resolve) => setImmediate(resolve)).then(() => prepareBatch({ directory, messages: batch }));
+    if (!afterTurn) return { batch, prepared: prepare(batch) };
+    const prepared = new Promise<void>((resolve) => setImmediate(resolve)).then(() => prepare(batch));
     prepared.catch(() => {});
     return { batch, prepared };
   }
@@ -347,7 +343,7 @@ export function createBatcher(options: BatcherOptions) {
           const done = commitBatch(current);
           // While this batch is in the database, the next full one is made ready (CPU
           // work that would otherwise come between two transactions).
-          if (!stopped && pendingWeight >= batchSamples) next = takeNextLater();
+          if (!stopped && pendingWeight >= batchSamples) next = takeNext(true);
           await done;
           releaseRoom();
           // Keep batches full under load: commit again at once only when a full batch waits
