@@ -15,7 +15,7 @@ const nextConfig = {
   reactStrictMode: true,
   poweredByHeader: false,
   // Database drivers and the broker stay plain Node modules, loaded at run time.
-  serverExternalPackages: ['@electric-sql/pglite', 'postgres', 'aedes', 'mqtt', 'tsx'],
+  serverExternalPackages: ['@electric-sql/pglite', 'postgres', 'aedes', 'aedes-persistence', 'mqtt', 'tsx'],
   // Types are checked by `npm run typecheck` (CI runs it); the build need not repeat it.
   typescript: { ignoreBuildErrors: true },
 };

@@ -6,6 +6,7 @@
 import { createServer, type Server } from 'node:net';
 import { Aedes } from 'aedes';
 import { AppError } from '../errors/app-error';
+import { createEmbeddedPersistence } from './embedded-persistence';
 import type { Logger } from '../log/logger';
 import { isPortFree } from '../server/ports';
 
@@ -37,7 +38,8 @@ export async function startEmbeddedBroker({
       { expose: true },
     );
   }
-  const aedes = await Aedes.createBroker();
+  // Sessions in memory, with acknowledgements matched to the connection they came on (embedded-persistence.ts).
+  const aedes = await Aedes.createBroker({ persistence: createEmbeddedPersistence() as never });
   aedes.on('clientError', (client, error) => log?.debug('client error', { client: client?.id, error }));
   const server: Server = createServer(aedes.handle);
   await new Promise<void>((resolve, reject) => {
