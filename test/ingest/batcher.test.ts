@@ -5,11 +5,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDatabase, type DatabaseHandle } from '../../db/client';
 import { createBatcher, type Batcher, type PendingMessage } from '../../lib/ingest/batcher';
-import { NO_ENTRIES, NO_FIELDS } from '../../lib/ingest/decode';
-import { sampleBlockOf } from '../../lib/ingest/sample-block';
 import { openIngestDatabase, type IngestDatabase } from '../../lib/ingest/sql';
 import { createUnitDirectory } from '../../lib/ingest/unit-directory';
-import { queryRows, registerFleet, testFleet, testLogger, testTag, waitFor } from '../support/ingest';
+import { decodedMessage, queryRows, registerFleet, testFleet, testLogger, testTag, waitFor } from '../support/ingest';
 
 const fleet = testFleet(testTag(), { windUnits: 1, hydroUnits: 0 });
 const unit = fleet.units[0]!;
@@ -18,23 +16,7 @@ const start = Date.now() - 3_600_000;
 /** A message of `count` samples from `fromS` seconds after `start`, acknowledged into `acks`, alive while `alive()`. */
 function message(fromS: number, count: number, acks: number[], alive: () => boolean): PendingMessage {
   const samples = Array.from({ length: count }, (_, i) => ({ ts: start + (fromS + i) * 1000, rpm: 250, vab: 230, kw: 2 }));
-  return {
-    topic: `millrace/${unit.siteId}/${unit.id}/telemetry`,
-    siteId: unit.siteId,
-    unitId: unit.id,
-    kind: 'telemetry',
-    receivedAtMs: Date.now(),
-    retained: false,
-    samples: sampleBlockOf(samples),
-    quarantined: NO_ENTRIES,
-    presence: undefined,
-    unknownFields: NO_FIELDS,
-    preview: '',
-    payloadBytes: 0,
-    topicProblem: undefined,
-    qos: 1,
-    receipt: { ack: () => acks.push(fromS), alive },
-  };
+  return { ...decodedMessage(unit, samples), qos: 1, receipt: { ack: () => acks.push(fromS), alive } };
 }
 
 describe('the batcher', { timeout: 30_000 }, () => {

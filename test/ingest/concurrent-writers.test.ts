@@ -16,9 +16,8 @@ import { integrateIntoBuckets } from '../../lib/energy/integrate';
 import { openIngestDatabase, type IngestDatabase } from '../../lib/ingest/sql';
 import { createUnitDirectory } from '../../lib/ingest/unit-directory';
 import { writeBatch, type DecodedMessage } from '../../lib/ingest/writer';
-import { sampleBlockOf } from '../../lib/ingest/sample-block';
 import { createPostgresDatabase } from '../support/backend';
-import { adminDatabaseUrl, queryRows, registerFleet, testFleet, testTag, waitFor } from '../support/ingest';
+import { adminDatabaseUrl, decodedMessage, queryRows, registerFleet, testFleet, testTag, waitFor } from '../support/ingest';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 1, hydroUnits: 0 });
@@ -26,19 +25,7 @@ const unit = fleet.units[0]!;
 const bucket = Math.floor((Date.now() - 3_600_000) / 600_000) * 600_000;
 
 function message(samples: Array<{ ts: number; kw: number }>): DecodedMessage {
-  return {
-    topic: `millrace/${unit.siteId}/${unit.id}/telemetry`,
-    siteId: unit.siteId,
-    unitId: unit.id,
-    kind: 'telemetry',
-    receivedAtMs: Date.now(),
-    retained: false,
-    samples: sampleBlockOf(samples.map((s) => ({ ts: s.ts, rpm: 250, vab: 230, kw: s.kw }))),
-    quarantined: [],
-    unknownFields: [],
-    preview: '',
-    payloadBytes: 0,
-  };
+  return decodedMessage(unit, samples.map((s) => ({ ts: s.ts, rpm: 250, vab: 230, kw: s.kw })));
 }
 
 describe('two ingest transactions on neighbouring samples of one unit', { timeout: 60_000 }, () => {

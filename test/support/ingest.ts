@@ -14,7 +14,28 @@ import { createLogger, type Logger } from '../../lib/log/logger';
 import { upsertFleet } from '../../lib/fleet/queries';
 import { freePort } from '../../lib/server/ports';
 import type { DatabaseHandle } from '../../db/client';
+import type { TelemetrySample } from '../../lib/contract/telemetry';
+import { NO_ENTRIES, NO_FIELDS } from '../../lib/ingest/decode';
+import { sampleBlockOf } from '../../lib/ingest/sample-block';
+import type { DecodedMessage } from '../../lib/ingest/writer';
 import { realBrokerUrl } from './backend';
+
+/** A telemetry message of `unit` holding `samples`, decoded as the ingester decodes one on arrival. */
+export function decodedMessage(unit: { siteId: string; id: string }, samples: readonly TelemetrySample[]): DecodedMessage {
+  return {
+    topic: `millrace/${unit.siteId}/${unit.id}/telemetry`,
+    siteId: unit.siteId,
+    unitId: unit.id,
+    kind: 'telemetry',
+    receivedAtMs: Date.now(),
+    retained: false,
+    samples: sampleBlockOf(samples),
+    quarantined: NO_ENTRIES,
+    unknownFields: NO_FIELDS,
+    preview: '',
+    payloadBytes: 0,
+  };
+}
 
 /** A short random tag that keeps one test file's sites apart from another's on a shared broker. */
 export function testTag(): string {
