@@ -10,6 +10,7 @@ import { SQRT3, recoverPhaseEmfFast } from '../physics/emf';
 import { remanenceCoeffPctPerC } from '../physics/magnet-temperature';
 import { median } from '../physics/median';
 import { negativeSequenceUnbalancePct } from '../physics/negative-sequence';
+import { meanOfPhases } from '../physics/phase-mean';
 import { phaseVoltsFromLines } from '../physics/phase-voltages';
 import { rpmFromHz } from '../physics/synchronous-speed';
 import { fitThroughOrigin } from '../physics/through-origin-fit';
@@ -135,25 +136,6 @@ function timeOrder(ts: Float64Array, n: number): Uint32Array | undefined {
   return order;
 }
 
-/** Mean of the finite values among three; NaN when none (internal only). */
-function mean3(a: number, b: number, c: number): number {
-  let sum = 0;
-  let n = 0;
-  if (a === a) {
-    sum += a;
-    n++;
-  }
-  if (b === b) {
-    sum += b;
-    n++;
-  }
-  if (c === c) {
-    sum += c;
-    n++;
-  }
-  return n === 0 ? Number.NaN : sum / n;
-}
-
 function selectTrack(
   source: 'rpm' | 'hz',
   cols: SampleColumns,
@@ -197,7 +179,7 @@ function selectTrack(
       continue;
     }
     const i = order === undefined ? here : (order[here] as number);
-    if (!(mean3(vab[i] as number, vbc[i] as number, vca[i] as number) > 0)) {
+    if (!(meanOfPhases(vab[i] as number, vbc[i] as number, vca[i] as number) > 0)) {
       withoutVoltage++;
       continue;
     }
@@ -567,8 +549,8 @@ function fitTrack(track: Track, cols: SampleColumns, order: Uint32Array | undefi
     const a = vab[i] as number;
     const b = vbc[i] as number;
     const c = vca[i] as number;
-    const vll = mean3(a, b, c);
-    const current = mean3(ia[i] as number, ib[i] as number, ic[i] as number);
+    const vll = meanOfPhases(a, b, c);
+    const current = meanOfPhases(ia[i] as number, ib[i] as number, ic[i] as number);
     const amps = current === current ? current : 0;
     const f = hz[i] === hz[i] ? (hz[i] as number) : hzPerRpm * speed;
     const ohm = nameplate.phaseOhm * (1 + COPPER_TEMP_COEFF_PER_C * (windingC - COPPER_REF_C));

@@ -15,6 +15,7 @@
  */
 import type { TelemetrySample } from '../contract/telemetry';
 import type { UnitKind } from '../contract/nameplate';
+import { meanOfPhases } from '../physics/phase-mean';
 import { FIELD_INDEX, BLOCK_WIDTH, sampleBlockOf, type SampleBlock } from './sample-block';
 
 /** Length of the short rollup bucket, ms (10 minutes). */
@@ -77,25 +78,6 @@ export interface Stat {
 
 const f32 = Math.fround;
 
-/** Mean of the present (non-NaN) values among three, without an array: it runs for every stored sample. */
-function mean3(a: number, b: number, c: number): number {
-  let sum = 0;
-  let n = 0;
-  if (a === a) {
-    sum += a;
-    n++;
-  }
-  if (b === b) {
-    sum += b;
-    n++;
-  }
-  if (c === c) {
-    sum += c;
-    n++;
-  }
-  return n === 0 ? Number.NaN : sum / n;
-}
-
 /** Room for `capacity` rows, none filled. */
 export function createRollupRows(capacity: number): RollupRows {
   const all = new Float64Array(capacity * 7);
@@ -114,8 +96,8 @@ export function appendRollupRow(rows: RollupRows, block: SampleBlock, i: number,
   const r = rows.count++;
   rows.ts[r] = block.ts[i]!;
   rows.rpm[r] = f32(v[at + FIELD_INDEX.rpm]!);
-  rows.vll[r] = mean3(f32(v[at + FIELD_INDEX.vab]!), f32(v[at + FIELD_INDEX.vbc]!), f32(v[at + FIELD_INDEX.vca]!));
-  rows.amps[r] = mean3(f32(v[at + FIELD_INDEX.ia]!), f32(v[at + FIELD_INDEX.ib]!), f32(v[at + FIELD_INDEX.ic]!));
+  rows.vll[r] = meanOfPhases(f32(v[at + FIELD_INDEX.vab]!), f32(v[at + FIELD_INDEX.vbc]!), f32(v[at + FIELD_INDEX.vca]!));
+  rows.amps[r] = meanOfPhases(f32(v[at + FIELD_INDEX.ia]!), f32(v[at + FIELD_INDEX.ib]!), f32(v[at + FIELD_INDEX.ic]!));
   rows.kw[r] = f32(v[at + FIELD_INDEX.kw]!);
   rows.statorC[r] = f32(v[at + FIELD_INDEX.statorC]!);
   rows.resource[r] = f32(v[at + (kind === 'wind' ? FIELD_INDEX.windMs : FIELD_INDEX.flowM3s)]!);
@@ -136,9 +118,9 @@ function emptyStat(): Stat {
   return { sum: 0, count: 0 };
 }
 
-/** The quantities of a row that the rollups keep statistics of, in {@link STAT_NAMES} order. */
-const statColumns = (rows: RollupRows) => [rows.rpm, rows.vll, rows.amps, rows.kw, rows.statorC, rows.resource] as const;
+/** The quantities of a row that the rollups keep statistics of. */
 const STAT_NAMES = ['rpm', 'vll', 'amps', 'kw', 'statorC', 'resource'] as const;
+const statColumns = (rows: RollupRows) => STAT_NAMES.map((name) => rows[name]);
 /** Minimum, maximum, sum and count of each of the six quantities, in one Float64Array (no boxed numbers per row). */
 const ACC_WIDTH = 4;
 
