@@ -1,6 +1,7 @@
 import { QUARANTINE_COUNT_CAP } from '../lib/fleet/queries';
 import { loadFleetOverview } from '../lib/fleet/overview';
-import { VerdictBadge } from './_components/verdict-badge';
+import { StateBadge } from './_components/state-badge';
+import { unitStateOf } from '../lib/fleet/unit-state';
 import { ago } from './_components/format';
 
 export const dynamic = 'force-dynamic';
@@ -71,7 +72,13 @@ export default async function FleetPage() {
                     </td>
                     <td>{ago(unit.lastSampleTs, now)}</td>
                     <td>
-                      <VerdictBadge verdict={unit.verdict} />
+                      <StateBadge
+                        {...unitStateOf({
+                          health: unit.verdict === null ? undefined : { verdict: unit.verdict, findings: [] },
+                          lastSampleMs: unit.lastSampleTs?.getTime() ?? null,
+                          nowMs: now.getTime(),
+                        })}
+                      />
                     </td>
                     <td className="num">{unit.keRatio === null ? '–' : unit.keRatio.toFixed(3)}</td>
                   </tr>

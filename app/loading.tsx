@@ -1,0 +1,8 @@
+/** Shown while a page reads its data. */
+export default function Loading() {
+  return (
+    <p className="loading" role="status">
+      Reading the latest state of the fleet…
+    </p>
+  );
+}
