@@ -10,6 +10,7 @@
  */
 import type { Db } from '../../db/client';
 import type { Logger } from '../log/logger';
+import type { LivePublisher } from '../live/publisher';
 import { diagnoseSamples, type DiagnosisResult, type Verdict } from './diagnose';
 import { finding } from './findings';
 import { DEFAULT_LIMITS } from './limits';
@@ -55,6 +56,8 @@ export interface DiagnosisPassOptions {
   /** "Now", epoch ms (tests). */
   readonly nowMs?: number;
   readonly log?: Logger;
+  /** Where to tell open pages that units were diagnosed: once per written batch, one event a unit. */
+  readonly live?: LivePublisher;
 }
 
 /** What one pass did. */
@@ -74,7 +77,7 @@ function chunks<T>(list: readonly T[], size: number): T[][] {
 
 async function diagnoseBatch(
   batch: readonly UnitDue[],
-  o: Required<Omit<DiagnosisPassOptions, 'log'>> & { log?: Logger },
+  o: Required<Omit<DiagnosisPassOptions, 'log' | 'live'>> & { log?: Logger; live?: LivePublisher },
 ): Promise<{ samples: number; writes: HealthWrite[] }> {
   const windows = batch.map((u) => {
     const hours = u.nameplate.diagnosis?.windowHours ?? o.windowHours;
@@ -129,6 +132,15 @@ async function diagnoseBatch(
     return { ...write, trend: keTrend(points, { thresholdRatio: threshold }) };
   });
   await upsertUnitHealthBatch({ db: o.db, writes });
+  o.live?.publish(
+    results.map((r) => ({
+      type: 'diagnosis' as const,
+      siteId: r.unit.siteId,
+      unitId: r.unit.unitId,
+      verdict: r.result.verdict,
+      ...(r.unit.lastVerdict === undefined ? {} : { previousVerdict: r.unit.lastVerdict }),
+    })),
+  );
   return { samples, writes };
 }
 
@@ -155,6 +167,7 @@ export async function runDiagnosisPass(options: DiagnosisPassOptions): Promise<D
     historyEveryS: options.historyEveryS ?? DEFAULT_HISTORY_EVERY_S,
     nowMs: options.nowMs ?? Date.now(),
     log: options.log,
+    live: options.live,
   };
   if (!(o.windowHours > 0)) throw new RangeError(`windowHours must be above 0, got ${o.windowHours}`);
   if (!Number.isInteger(o.batchUnits) || o.batchUnits < 1) throw new RangeError(`batchUnits must be a whole number of at least 1, got ${o.batchUnits}`);
@@ -187,6 +200,8 @@ export interface LiveDiagnosisOptions {
   readonly log: Logger;
   readonly maxSamples?: number;
   readonly historyEveryS?: number;
+  /** See {@link DiagnosisPassOptions.live}. */
+  readonly live?: LivePublisher;
 }
 
 /**
@@ -209,6 +224,7 @@ export function startLiveDiagnosis(options: LiveDiagnosisOptions): () => Promise
         maxSamples: options.maxSamples,
         historyEveryS: options.historyEveryS,
         log: options.log,
+        live: options.live,
       });
       if (r.units > 0) options.log.info('diagnosis pass', { ...r });
       else options.log.debug('diagnosis pass: no unit due', { elapsedMs: r.elapsedMs });

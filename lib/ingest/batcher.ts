@@ -37,6 +37,8 @@ export interface BatcherOptions {
   /** A commit that takes longer counts as the database being out of reach (PostgreSQL), ms. */
   commitTimeoutMs?: number;
   now?: () => number;
+  /** Called once per committed batch, after its acknowledgements (the live feed); must not throw or wait. */
+  onCommitted?: (result: BatchResult) => void;
 }
 
 export interface BatcherCounters {
@@ -256,6 +258,13 @@ export function createBatcher(options: BatcherOptions) {
         noteRecovery();
         account(result, batch, startedAt);
         for (const m of batch) m.receipt.ack();
+        if (options.onCommitted && result.sampledUnits.length > 0) {
+          try {
+            options.onCommitted(result);
+          } catch (error) {
+            log.warn('after-commit hook failed', { error });
+          }
+        }
         return { ok: true };
       } catch (error) {
         prepared = undefined;

@@ -7,7 +7,7 @@
 import { hostname } from 'node:os';
 import type { DatabaseHandle } from '../../db/client';
 import type { Logger } from '../log/logger';
-import { registerComponent, type ComponentState } from '../server/registry';
+import type { LivePublisher } from '../live/publisher';
 import { createBatcher, type BatcherCounters, type PendingMessage } from './batcher';
 import { openConnectionPool, type ConnectionState, type Delivery } from './connections';
 import { NO_ENTRIES, NO_FIELDS, QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload } from './decode';
@@ -43,12 +43,13 @@ export interface IngesterOptions {
   maintenance?: boolean;
   /** How long the broker keeps this ingester's sessions while it is away, s; default 7 days. */
   sessionExpirySeconds?: number;
-  /** Register with the component registry for GET /api/health; default true. */
-  register?: boolean;
+  /** Where to tell open pages that units have new samples: once per committed batch, one event a unit. */
+  live?: LivePublisher;
 }
 
-export interface IngesterState extends ComponentState {
+export interface IngesterState {
   status: 'ok' | 'degraded' | 'down';
+  [key: string]: unknown;
   reason?: string;
   startedAt: string;
   broker: { url: string; mqtt5: boolean; connected: number; connections: ConnectionState[] };
@@ -92,7 +93,7 @@ const RATE_WINDOW_MS = 10_000;
  * background (see `ready`).
  */
 export async function startIngester(options: IngesterOptions): Promise<Ingester> {
-  const { handle, log } = options;
+  const { handle, log, live } = options;
   const clientId = options.clientId ?? defaultIngestClientId();
   const retentionDays = options.retentionDays ?? 90;
   const startedAt = new Date();
@@ -105,6 +106,10 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
     batchSamples: options.batchSamples,
     batchMs: options.batchMs,
     bufferSamples: options.bufferSamples,
+    onCommitted: live
+      ? (result) =>
+          live.publish(result.sampledUnits.map((u) => ({ type: 'samples', siteId: u.siteId, unitId: u.unitId, lastTs: new Date(u.lastTsMs).toISOString() })))
+      : undefined,
   });
   const decoder = createTelemetryDecoder({ retentionDays });
   const retention: IngesterState['retention'] = { days: retentionDays, droppedPartitions: 0, quarantineRowsDeleted: 0 };
@@ -266,7 +271,6 @@ export async function startIngester(options: IngesterOptions): Promise<Ingester>
     };
   };
 
-  if (options.register !== false) registerComponent('ingester', { state });
   log.info('ingester started', {
     broker: options.brokerUrl,
     mqtt5: options.mqtt5,

@@ -11,6 +11,7 @@ import { createLogger } from '../log/logger';
 import { heapProblem } from './heap';
 import { startIngester } from './ingester';
 import { startLiveDiagnosis } from '../diagnosis/live';
+import { createLivePublisher } from '../live/publisher';
 
 async function main(): Promise<number> {
   let config;
@@ -34,7 +35,10 @@ async function main(): Promise<number> {
     return 2;
   }
   const handle = await openDatabase({ url: config.DATABASE_URL, dataDir: config.DATA_DIR, maxConnections: 4 });
+  // Open pages of the web process (npm run web) hear of new samples and diagnoses through NOTIFY.
+  const live = createLivePublisher({ handle, log: log.child('live') });
   const ingester = await startIngester({
+    live,
     handle,
     brokerUrl: config.MQTT_URL,
     mqtt5: true,
@@ -56,6 +60,7 @@ async function main(): Promise<number> {
     intervalS: config.DIAGNOSIS_INTERVAL_S,
     windowHours: config.DIAGNOSIS_WINDOW_HOURS,
     log: log.child('diagnosis'),
+    live,
   });
   ingester.ready().catch(async () => {
     await stopDiagnosis();
@@ -76,6 +81,7 @@ async function main(): Promise<number> {
       log.info('draining before exit', { signal });
       void stopDiagnosis()
         .then(() => ingester.stop())
+        .then(() => live.flush())
         .then(() => handle.close())
         .then(
           () => resolve(0),

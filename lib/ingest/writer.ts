@@ -119,6 +119,8 @@ export interface BatchResult {
   unknownFieldsByUnit: Map<string, Set<string>>;
   /** Newest sample time among the inserted, epoch ms (undefined when none). */
   newestTsMs?: number;
+  /** Each unit with samples in the batch and its newest sample time, epoch ms (for the live feed: one entry a unit). */
+  sampledUnits: Array<{ siteId: string; unitId: string; lastTsMs: number }>;
   /** Milliseconds spent in each step, for the debug log. */
   phases: Record<string, number>;
 }
@@ -368,8 +370,15 @@ export async function writePrepared({
   });
   phase('commit');
 
+  const sampled: BatchResult['sampledUnits'] = [];
+  for (const u of seen.values()) {
+    const unit = unitByKey.get(u.unitKey);
+    if (unit) sampled.push({ siteId: unit.siteId, unitId: unit.id, lastTsMs: u.lastSampleTsMs });
+  }
+
   return {
     inserted: result.inserted,
+    sampledUnits: sampled,
     duplicates: batch.duplicates + (refs.length - result.inserted),
     quarantined: quarantine.length,
     presence: presenceByUnit.size,

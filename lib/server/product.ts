@@ -14,6 +14,9 @@ import { createLogger, type Logger } from '../log/logger';
 import { getDatabase, closeDatabase, redactUrl, rowsOf, type DatabaseHandle } from '../../db/client';
 import { registerComponent } from './registry';
 import { startWebServer } from './next-app';
+import { createLivePublisher, type LivePublisher } from '../live/publisher';
+import { getLiveHub } from '../live/hub';
+import { ensureLiveListener, stopLiveListener } from '../live/listener';
 
 type Stoppable = { name: string; stop(): Promise<void> };
 
@@ -45,8 +48,11 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     registerComponent('broker', { state: () => ({ status: 'ok', embedded: false, url: redactUrl(config.MQTT_URL!) }) });
   }
 
+  // Workers publish to the live feed; the host registers them for /api/health.
+  const live = createLivePublisher({ handle, log: log.child('live') });
   const { startIngester } = await import('../ingest/ingester');
   const ingester = await startIngester({
+    live,
     handle,
     brokerUrl,
     mqtt5,
@@ -62,6 +68,8 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     log: log.child('ingest'),
   });
   stack.push({ name: 'ingester', stop: () => ingester.stop() });
+  registerComponent('ingester', { state: () => ingester.state() });
+  registerLivePublisher(live);
 
   const { startLiveDiagnosis } = await import('../diagnosis/live');
   const diagnosis = startLiveDiagnosis({
@@ -69,11 +77,38 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     intervalS: config.DIAGNOSIS_INTERVAL_S,
     windowHours: config.DIAGNOSIS_WINDOW_HOURS,
     log: log.child('diagnosis'),
+    live,
   });
   stack.push({ name: 'diagnosis', stop: async () => diagnosis() });
 
   if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack);
   else registerComponent('demo', { state: () => ({ status: 'off', reason: 'DEMO=off' }) });
+}
+
+let publisherState: LivePublisher['state'] | undefined;
+
+function registerLivePublisher(live: LivePublisher) {
+  publisherState = () => live.state();
+}
+
+/** The live feed in /api/health: how events reach this process and how many pages listen. */
+async function liveComponent(handle: DatabaseHandle, log: Logger, stack: Stoppable[]) {
+  const listener = await ensureLiveListener(handle, log.child('live'));
+  stack.push({ name: 'live feed', stop: () => stopLiveListener() });
+  registerComponent('live', {
+    state: () => {
+      const heard = listener.state();
+      const hub = getLiveHub();
+      return {
+        status: heard.listening ? 'ok' : 'degraded',
+        ...(heard.listening ? {} : { reason: 'not listening for changes: open pages do not update' }),
+        source: heard,
+        publisher: publisherState?.(),
+        openStreams: hub.openStreams(),
+        lastEventId: hub.currentId(),
+      };
+    },
+  });
 }
 
 async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: string, log: Logger, stack: Stoppable[]) {
@@ -124,6 +159,7 @@ export async function startProduct({ role, env = process.env }: { role: 'all' | 
   try {
     const handle = await getDatabase({ url: config.DATABASE_URL, dataDir: config.DATA_DIR });
     await databaseComponent(handle);
+    await liveComponent(handle, log, stack);
     if (role === 'all') await startPipeline(config, handle, log, stack);
     else {
       if (handle.backend === 'pglite') {

@@ -226,7 +226,6 @@ describe(`bad input lands in quarantine with its reason (${backendDescription()}
       batchMs: 50,
       bufferSamples: 10_000,
       log: testLogger('ingest', logLines),
-      register: false,
       sessionExpirySeconds: 120,
     });
     await ingester.ready();

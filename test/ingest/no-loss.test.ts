@@ -29,6 +29,7 @@ import {
   type Outgoing,
 } from '../support/ingest';
 import { startMosquitto, type TestMosquitto } from '../support/mosquitto';
+import { mosquitto as mosquittoBinary, postgresServer, skipUnless } from '../support/services';
 import { startTcpProxy } from '../support/tcp-proxy';
 
 const SAMPLES_PER_MESSAGE = 10;
@@ -88,7 +89,7 @@ async function expectExactlyN(handle: DatabaseHandle, fleet: ReturnType<typeof t
 
 const fleetOf = (tag: string) => testFleet(tag, { windUnits: UNITS - 2, hydroUnits: 2 });
 
-describe('no loss with the shipped Mosquitto configuration and PostgreSQL', { timeout: 180_000 }, () => {
+describe.skipIf(skipUnless([mosquittoBinary, postgresServer], 'Mosquitto cases'))('no loss with the shipped Mosquitto configuration and PostgreSQL', { timeout: 180_000 }, () => {
   let mosquitto: TestMosquitto;
   let db: { url: string; drop(): Promise<void> };
   let handle: DatabaseHandle;
@@ -162,7 +163,6 @@ describe('no loss with the shipped Mosquitto configuration and PostgreSQL', { ti
       batchMs: 50,
       bufferSamples,
       log: testLogger('ingest', lines),
-      register: false,
     });
     let maxBuffered = 0;
     const watcher = setInterval(() => (maxBuffered = Math.max(maxBuffered, ingester.state().buffer.samples)), 10);
@@ -212,7 +212,6 @@ describe('no loss with the shipped Mosquitto configuration and PostgreSQL', { ti
       batchMs: 1000,
       bufferSamples: 20_000,
       log: testLogger(),
-      register: false,
     });
     const subscribed = () => ingester.state().broker.connections.every((c) => c.connected && c.subscribed);
     try {
@@ -273,7 +272,6 @@ describe('no loss on the embedded broker and database (aedes, PGlite)', { timeou
         batchMs: 50,
         bufferSamples: 5000,
         log: testLogger(),
-        register: false,
       };
       let ingester = await startIngester(options);
       await ingester.ready();

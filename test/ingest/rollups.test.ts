@@ -67,7 +67,6 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
       batchMs: 20,
       bufferSamples: 5000,
       log: testLogger(),
-      register: false,
       sessionExpirySeconds: 120,
     });
     await ingester.ready();

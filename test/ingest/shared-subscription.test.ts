@@ -13,6 +13,7 @@ import { startIngester, type Ingester } from '../../lib/ingest/ingester';
 import { createPostgresDatabase } from '../support/backend';
 import { adminDatabaseUrl, openPublisher, queryRows, registerFleet, samplesPayload, testFleet, testLogger, testTag, waitFor, type Outgoing } from '../support/ingest';
 import { startMosquitto, type TestMosquitto } from '../support/mosquitto';
+import { mosquitto as mosquittoBinary, postgresServer, skipUnless } from '../support/services';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 4, hydroUnits: 0 });
@@ -20,7 +21,8 @@ const MESSAGES_PER_UNIT = 400;
 const SAMPLES_PER_MESSAGE = 10;
 const N = fleet.units.length * MESSAGES_PER_UNIT * SAMPLES_PER_MESSAGE;
 
-describe('two ingesters on the shared subscription', { timeout: 180_000 }, () => {
+// Needs Mosquitto (MQTT 5 shared subscriptions; aedes speaks 3.1.1) and a real PostgreSQL (two ingesters' connections).
+describe.skipIf(skipUnless([mosquittoBinary, postgresServer], 'two ingesters'))('two ingesters on the shared subscription', { timeout: 180_000 }, () => {
   let mosquitto: TestMosquitto;
   let db: { url: string; drop(): Promise<void> };
   let handles: DatabaseHandle[] = [];
@@ -46,7 +48,6 @@ describe('two ingesters on the shared subscription', { timeout: 180_000 }, () =>
           batchMs: 20,
           bufferSamples: 20_000,
           log: testLogger(),
-          register: false,
         }),
       ),
     );
