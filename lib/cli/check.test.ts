@@ -72,13 +72,34 @@ describe('millrace check', () => {
     const c = capture();
     expect(await main(['check', '--nameplate', unit, '--log', log], c.io)).toBe(0);
     const lines = c.out().split('\n');
-    expect(lines[0]).toMatch(/^Verdict: demagnetised/);
+    expect(lines[0]).toBe('Verdict: Magnets weakened (corrected Ke low on all phases alike)');
     const ke = lines.findIndex((l) => l.includes('Ke ratio'));
     const findings = lines.indexOf('Findings');
     expect(ke).toBeGreaterThan(0);
     expect(findings).toBeGreaterThan(ke);
-    expect(c.out()).toContain('[alarm] demagnetised');
+    expect(lines).toContain('  ALARM: Magnets weakened');
+    expect(lines.some((l) => l.startsWith('    Next steps: '))).toBe(true);
     expect(c.out().replace(/\s+/g, ' ')).toContain(SAFETY_CAUTION);
+    // A crew member reads the report on a small terminal: no line past 80 columns.
+    for (const line of lines) expect(line.length, line).toBeLessThanOrEqual(80);
+  });
+
+  it('reports speeds above maxRpm as an overspeed alarm, in JSON and in the report', async () => {
+    const unit = file('unit.json', JSON.stringify(TEST_NAMEPLATE));
+    // TEST_NAMEPLATE.maxRpm is 420 (ratedRpm 300): samples 50–59 at 1.5 of rated, 450 rpm.
+    const log = file('overspeed.csv', csv(syntheticSamples({ speedShare: (i) => (i >= 50 && i < 60 ? 1.5 : 0.3 + (0.9 * i) / 719), noise: 0 })));
+    const j = capture();
+    expect(await main(['check', '--nameplate', unit, '--log', log, '--json'], j.io)).toBe(0);
+    const result = JSON.parse(j.out()) as { verdict: string; findings: Array<{ code: string; severity: string; message: string }> };
+    const f = result.findings.find((x) => x.code === 'overspeed');
+    expect(f?.severity).toBe('alarm');
+    expect(f!.message).toContain('10 samples above the 420 rpm overspeed limit');
+    expect(result.verdict).toBe('healthy');
+    const r = capture();
+    expect(await main(['check', '--nameplate', unit, '--log', log], r.io)).toBe(0);
+    const lines = r.out().split('\n');
+    expect(lines[1]).toBe('Also alarmed: Overspeed');
+    expect(lines).toContain('  ALARM: Overspeed');
   });
 
   it('skips bad rows, counting them with line numbers and reasons', async () => {

@@ -11,7 +11,8 @@ import { AppError } from '../errors/app-error';
 import { formatIssues } from '../contract/telemetry';
 import { nameplateSchema, type Nameplate } from '../contract/nameplate';
 import { diagnoseSamples, type DiagnosisResult } from '../diagnosis/diagnose';
-import { SAFETY_CAUTION, finding, num, type Finding } from '../diagnosis/findings';
+import { SAFETY_CAUTION, finding, num, splitFindingMessage, type Finding } from '../diagnosis/findings';
+import { SEVERITY_LABEL, VERDICT_BASIS, VERDICT_LABEL, findingTitle } from '../diagnosis/vocabulary';
 import { SampleColumns } from '../diagnosis/sample-columns';
 import { parseOptions } from './args';
 import { readCsvLog } from './csv-log';
@@ -27,7 +28,7 @@ const MAX_INITIAL_ROWS = 4_000_000;
 /** Milliseconds between progress updates on a terminal. */
 const PROGRESS_EVERY_MS = 200;
 /** Width the readable report wraps to. */
-const REPORT_WIDTH = 100;
+const REPORT_WIDTH = 80;
 
 /** Runs `check`; returns the exit status. */
 export async function run(args: string[], io: CliIo): Promise<number> {
@@ -258,27 +259,28 @@ function wrap(text: string, first: string, rest: string, width: number = REPORT_
 
 const MAGNET_NAMES: Record<Nameplate['magnet'], string> = { ndfeb: 'NdFeB', smco: 'SmCo', ferrite: 'ferrite' };
 
-const VERDICT_TEXT: Record<DiagnosisResult['verdict'], string> = {
-  healthy: 'healthy',
-  demagnetised: 'demagnetised (Ke low on all phases)',
-  'shorted-turns': 'shorted turns suspected (line voltages unbalanced)',
-  'speed-sensor-fault': 'speed sensor fault (frequency and rpm disagree)',
-  'insufficient-data': 'insufficient data (no verdict on the machine)',
+const TEMPERATURE_SOURCE: Record<NonNullable<DiagnosisResult['details']['magnetTempSource']>, string> = {
+  statorC: 'the stator temperature',
+  ambientC: 'the ambient temperature',
+  keRefC: "the nameplate's reference (no reading)",
+  mixed: 'stator or ambient temperature, sample by sample',
 };
 
-/** The report without --json: verdict first, then the numbers, then the findings. */
+/** The report without --json: verdict first, then the numbers, then the findings with their next steps. */
 function readableReport(result: DiagnosisResult, nameplate: Nameplate, logPath: string, rows: number): string {
   const d = result.details;
   const out: string[] = [];
-  out.push(`Verdict: ${VERDICT_TEXT[result.verdict]}`);
-  out.push(`Unit ${nameplate.siteId}/${nameplate.id}, log ${logPath}`);
+  out.push(`Verdict: ${VERDICT_LABEL[result.verdict]} (${VERDICT_BASIS[result.verdict]})`);
+  const alarms = result.findings.filter((f) => f.severity === 'alarm' && f.code !== result.verdict).map((f) => findingTitle(f.code));
+  if (alarms.length > 0) out.push(`Also alarmed: ${alarms.join(', ')}`);
+  out.push(...wrap(`Unit ${nameplate.siteId}/${nameplate.id}, log ${logPath}`, '', '  '));
   out.push('');
-  const row = (label: string, value: string) => out.push(`  ${label.padEnd(16)}${value}`);
+  const row = (label: string, value: string) => out.push(...wrap(value, `  ${label.padEnd(16)}`, ' '.repeat(18)));
   row(
     'Ke ratio',
     result.keRatio === null
       ? 'unknown'
-      : `${num(result.keRatio, 3)} of nameplate (95 % interval ${num(result.keRatioLow ?? result.keRatio, 4)} to ${num(result.keRatioHigh ?? result.keRatio, 4)})`,
+      : `${num(result.keRatio, 3)} of nameplate (95 % interval ${num(result.keRatioLow ?? result.keRatio, 3)} to ${num(result.keRatioHigh ?? result.keRatio, 3)})`,
   );
   if (d.keMeasuredVPerKrpm !== null) {
     row('Ke measured', `${num(d.keMeasuredVPerKrpm, 1)} V per 1000 rpm at ${num(nameplate.keRefC)} °C (nameplate ${num(d.keNameplateVPerKrpm, 1)})`);
@@ -293,12 +295,12 @@ function readableReport(result: DiagnosisResult, nameplate: Nameplate, logPath: 
   if (d.phaseKeRatio !== null) row('Phase Ke', `a ${num(d.phaseKeRatio.a, 3)}, b ${num(d.phaseKeRatio.b, 3)}, c ${num(d.phaseKeRatio.c, 3)}`);
   row(
     'Speed ratio',
-    `${result.speedRatio === null ? 'unknown (no hz)' : `${num(result.speedRatio, 4)} (hz over poles·rpm/120)`}; Ke fit on speed from ${d.speedSource === 'hz' ? 'frequency' : 'the rpm sensor'}`,
+    `${result.speedRatio === null ? 'unknown' : `${num(result.speedRatio, 3)} (frequency over poles × rpm / 120)`}; Ke fitted on speed from ${d.speedSource === 'hz' ? 'the terminal frequency' : 'the speed sensor'}`,
   );
   row('Samples used', `${num(result.samplesUsed)} of ${num(rows)} rows`);
   if (d.speedMinRpm !== null && d.speedMaxRpm !== null) row('Speed range', `${num(d.speedMinRpm)} to ${num(d.speedMaxRpm)} rpm (rated ${num(nameplate.ratedRpm)})`);
   if (d.magnetMeanC !== null) {
-    row('Magnets', `mean ${num(d.magnetMeanC, 1)} °C from ${d.magnetTempSource}; ${MAGNET_NAMES[nameplate.magnet]}, ${num(d.magnetCoeffPctPerC, 3)} % per °C`);
+    row('Magnets', `mean ${num(d.magnetMeanC, 1)} °C from ${d.magnetTempSource === null ? 'no reading' : TEMPERATURE_SOURCE[d.magnetTempSource]}; ${MAGNET_NAMES[nameplate.magnet]}, ${num(d.magnetCoeffPctPerC, 3)} % per °C`);
   }
   if (d.loadedSharePct !== null) {
     row('Load', `${num(d.loadedSharePct)} % of used samples under load` + (d.loadCorrectionPct === null ? '' : `, EMF ${num(d.loadCorrectionPct, 1)} % above terminal voltage on average`));
@@ -308,10 +310,12 @@ function readableReport(result: DiagnosisResult, nameplate: Nameplate, logPath: 
   out.push('');
   out.push('Findings');
   for (const f of result.findings) {
-    const onSite = f.message.endsWith(SAFETY_CAUTION);
-    const body = onSite ? f.message.slice(0, -SAFETY_CAUTION.length).trimEnd() : f.message;
-    out.push(...wrap(`[${f.severity}] ${f.code}: ${body}`, '  ', '    '));
-    if (onSite) out.push(...wrap(SAFETY_CAUTION, '    ! ', '      '));
+    const parts = splitFindingMessage(f.message);
+    out.push('');
+    out.push(...wrap(`${SEVERITY_LABEL[f.severity].toUpperCase()}: ${findingTitle(f.code)}`, '  ', '    '));
+    out.push(...wrap(parts.observation, '    ', '    '));
+    if (parts.nextSteps !== undefined) out.push(...wrap(`Next steps: ${parts.nextSteps}`, '    ', '    '));
+    if (parts.caution) out.push(...wrap(SAFETY_CAUTION, '    ! ', '      '));
   }
   out.push('');
   return out.join('\n');

@@ -17,8 +17,8 @@ import { fitThroughOrigin } from '../physics/through-origin-fit';
 import { lineVoltageUnbalancePct } from '../physics/unbalance';
 import { COPPER_REF_C, COPPER_TEMP_COEFF_PER_C } from '../physics/winding-resistance';
 import { SampleColumns, type DiagnosisSample } from './sample-columns';
-import { resolveLimits, TRANSIENT_NEIGHBOUR_MAX_S, type ResolvedLimits } from './limits';
-import { finding, num, pctFromOne, sortFindings, type Finding } from './findings';
+import { OVERSPEED_GAP_S, resolveLimits, TRANSIENT_NEIGHBOUR_MAX_S, type ResolvedLimits } from './limits';
+import { durationWords, finding, num, pctFromOne, sortFindings, type Finding } from './findings';
 
 export const VERDICTS = ['healthy', 'demagnetised', 'shorted-turns', 'speed-sensor-fault', 'insufficient-data'] as const;
 export type Verdict = (typeof VERDICTS)[number];
@@ -26,6 +26,8 @@ export type Verdict = (typeof VERDICTS)[number];
 /** The nameplate fields the diagnosis reads (a validated Nameplate fits). */
 export interface DiagnosisNameplate {
   readonly ratedRpm: number;
+  /** Overspeed limit, rev/min. */
+  readonly maxRpm: number;
   readonly poles: number;
   readonly keVPerKrpm: number;
   readonly keRefC: number;
@@ -270,25 +272,45 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
   else verdict = 'healthy';
 
   const floorRpm = limits.minSpeedFraction * nameplate.ratedRpm;
+  const spanNeeded = limits.minSpeedSpanFraction * nameplate.ratedRpm;
+  const speedWord = track.source === 'hz' ? 'speed from the terminal frequency' : 'speed';
   if (insufficient) {
-    findings.push(
-      finding(
-        'insufficient-data',
-        'warning',
-        `Only ${num(track.count)} samples usable over a speed range of ${num(span, 0)} rpm; the diagnosis needs at least ` +
-          `${num(limits.minSamples)} samples above ${num(floorRpm)} rpm (${num(limits.minSpeedFraction * 100)} % of rated) ` +
-          `spread over at least ${num(limits.minSpeedSpanFraction * nameplate.ratedRpm)} rpm (${num(limits.minSpeedSpanFraction * 100)} % of rated). ` +
-          'Collect a longer log that covers more of the operating speed range.',
-      ),
-    );
+    if (track.count >= limits.minSamples) {
+      // Enough samples, all at about one speed: a slope through one speed is not defined.
+      findings.push(
+        finding(
+          'insufficient-data',
+          'warning',
+          `The unit ran at one steady speed: the ${num(track.count)} usable samples lie between ${num(track.minRpm)} and ${num(track.maxRpm)} rpm, ` +
+            `a range of ${num(span)} rpm, and the diagnosis needs at least ${num(spanNeeded)} rpm (${num(limits.minSpeedSpanFraction * 100)} % of rated). ` +
+            'Ke is the slope of voltage against speed, and one speed gives no slope: a unit held at constant speed by a load controller always reads like this, and more hours at that speed will not help.',
+          {
+            next:
+              'Judge it from a log that includes a start-up or a run-down, which sweeps the speed through its range: ' +
+              "download one from the unit's controller after a normal start or stop and run `millrace check` on it. " +
+              'Do not change speed or open the load on purpose to make one.',
+          },
+        ),
+      );
+    } else {
+      findings.push(
+        finding(
+          'insufficient-data',
+          'warning',
+          `Only ${num(track.count)} samples were usable; the diagnosis needs at least ${num(limits.minSamples)} with the ${speedWord} ` +
+            `above ${num(floorRpm)} rpm (${num(limits.minSpeedFraction * 100)} % of rated), spread over at least ${num(spanNeeded)} rpm.`,
+          { next: 'Wait for the unit to run above that speed for a while, or check a longer log that covers more of its running.' },
+        ),
+      );
+    }
   }
   if (track.belowSpeed + track.inTransient + track.withoutVoltage + track.missing > 0) {
     const parts = [
       track.belowSpeed > 0 ? `${num(track.belowSpeed)} below ${num(floorRpm)} rpm` : '',
       track.inTransient > 0
-        ? `${num(track.inTransient)} in speed transients (faster than ${num(limits.maxSpeedRateFractionPerS * nameplate.ratedRpm, 1)} rpm/s)`
+        ? `${num(track.inTransient)} while the speed changed quickly (faster than ${num(limits.maxSpeedRateFractionPerS * nameplate.ratedRpm, 1)} rpm a second)`
         : '',
-      track.missing > 0 ? `${num(track.missing)} without ${track.source === 'hz' ? 'hz' : 'rpm'}` : '',
+      track.missing > 0 ? `${num(track.missing)} without a ${track.source === 'hz' ? 'frequency' : 'speed'} reading` : '',
     ].filter(Boolean);
     if (parts.length > 0) {
       findings.push(finding('samples-filtered', 'info', `${num(track.count)} of ${num(n)} samples used; not used: ${parts.join(', ')}.`));
@@ -300,32 +322,65 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
         'no-voltage-at-speed',
         'warning',
         `${num(track.withoutVoltage)} samples read 0 V on every line while turning above ${num(floorRpm)} rpm; they were not used. ` +
-          'A turning PM generator always makes voltage: check the voltage measurement and its wiring.',
-        true,
+          'A turning permanent-magnet generator always makes voltage, so the measurement is wrong, not the machine.',
+        {
+          next: 'Check the voltage transducers, their fuses and wiring in the cabinet; the terminals are live whenever the shaft turns.',
+          onSite: true,
+        },
       ),
     );
   }
 
-  if (speedRatio === undefined) {
-    findings.push(finding('no-frequency', 'info', 'No hz readings at speed: the speed sensor could not be cross-checked against the terminal frequency.'));
-  } else if (sensorFault) {
-    const hzRpm = speedRatio * nameplate.ratedRpm;
+  const overspeed = overspeedRun(cols, order, nameplate, sensorFault);
+  if (overspeed !== undefined) {
+    findings.push(
+      finding(
+        'overspeed',
+        'alarm',
+        `${num(overspeed.samples)} sample${overspeed.samples === 1 ? '' : 's'} above the ${num(nameplate.maxRpm)} rpm overspeed limit` +
+          `${sensorFault ? ' (speed from the terminal frequency, as the speed sensor is suspect)' : ''}; ` +
+          `highest ${num(overspeed.peakRpm)} rpm (${pctFromOne(overspeed.peakRpm / nameplate.maxRpm)} against the limit) at ${overspeed.peakTs}; ` +
+          `about ${durationWords(overspeed.seconds)} above the limit in all, between ${overspeed.firstTs} and ${overspeed.lastTs}.`,
+        {
+          next:
+            'Stop the unit by its remote or automatic means. Do not approach it until the rotor or runner is secured. ' +
+            'Before a restart, have the blades or runner, the bearings and the overspeed protection (brake, furling, dump load or governor) inspected by qualified people.',
+          onSite: true,
+        },
+      ),
+    );
+  }
+
+  if (sensorFault) {
+    // speedRatio is undefined here only when the sensor reads zero while the frequency shows the machine turning.
+    const dead = speedRatio === undefined;
+    const readsLow = dead || (speedRatio as number) > 1;
+    const observed = dead
+      ? `The speed sensor reads 0 rpm while the terminal frequency shows the machine turning (up to ${num(track.maxRpm)} rpm by frequency): the sensor is dead or disconnected.`
+      : `The terminal frequency and the speed sensor disagree: frequency over the sensor's equivalent (poles × rpm / 120) is ${num(speedRatio as number, 3)} (median), ` +
+        `beyond the ±${num(tolerance * 100, 1)} % tolerance; when the sensor reads ${num(nameplate.ratedRpm)} rpm the frequency says ${num((speedRatio as number) * nameplate.ratedRpm)} rpm.`;
     findings.push(
       finding(
         'speed-sensor-fault',
         verdict === 'insufficient-data' ? 'warning' : 'alarm',
-        `The terminal frequency and the speed sensor disagree: hz / (poles·rpm/120) is ${num(speedRatio, 3)} (median), ` +
-          `beyond the ±${num(tolerance * 100, 1)} % tolerance; when the sensor reads ${num(nameplate.ratedRpm)} rpm the frequency says ${num(hzRpm)} rpm. ` +
-          'A permanent-magnet generator has no slip, so the frequency is the true speed. Check the speed sensor, its pulses-per-revolution ' +
-          `setting, its target and wiring, and the nameplate pole count (${nameplate.poles}).`,
-        true,
+        `${observed} A permanent-magnet generator has no slip, so the frequency gives the true speed.` +
+          (readsLow ? ' The sensor reads low: if the controller uses it for its overspeed trip, that trip may come late or not at all.' : ''),
+        {
+          next:
+            (readsLow ? 'Treat the overspeed protection as unproven until the sensor is mended. ' : '') +
+            `Check the nameplate pole count (${nameplate.poles}) and the sensor's pulses-per-revolution setting first, from the controller; ` +
+            'then, with the unit stopped, the sensor, its target and its wiring.',
+          onSite: true,
+        },
       ),
     );
+  } else if (speedRatio === undefined) {
+    findings.push(finding('no-frequency', 'info', 'No frequency readings at speed: the speed sensor could not be cross-checked against the terminal frequency.'));
   }
 
   if (fit.ke !== undefined && !insufficient) {
     const ke = fit.ke;
-    const band = `${num(ke.slope, 3)} (95 % interval ${num(ke.low, 4)} to ${num(ke.high, 4)})`;
+    const band = `${num(ke.slope, 3)} (95 % interval ${num(ke.low, 3)} to ${num(ke.high, 3)})`;
     const measured = `${num(ke.slope * nameplate.keVPerKrpm, 1)} V per 1000 rpm against ${num(nameplate.keVPerKrpm, 1)} on the nameplate at ${num(nameplate.keRefC)} °C`;
     if (sensorFault) {
       findings.push(
@@ -334,9 +389,9 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
           ke.slope < limits.keAlarmRatio ? 'alarm' : ke.slope < limits.keWarnRatio ? 'warning' : 'info',
           `With speed taken from the terminal frequency, Ke is ${band} of nameplate (${measured}): magnets ` +
             (ke.slope < limits.keAlarmRatio
-              ? `weakened beyond the ${num(limits.keAlarmRatio, 2)} alarm threshold.`
+              ? `weakened beyond the ${num(limits.keAlarmRatio, 2)} alarm line.`
               : ke.slope < limits.keWarnRatio
-                ? `below the ${num(limits.keWarnRatio, 2)} warning threshold.`
+                ? `below the ${num(limits.keWarnRatio, 2)} warning line.`
                 : 'look healthy.'),
         ),
       );
@@ -347,10 +402,16 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
           finding(
             'demagnetised',
             'alarm',
-            `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}), below the ${num(limits.keAlarmRatio, 2)} alarm threshold, ` +
-              `${pctFromOne(ke.slope)} on all phases alike. Check the magnet temperature reading first (a sensor reading cold makes hot magnets look weak), ` +
-              'then the history of overheating, overload or short circuits; confirm with an open-circuit voltage test at known speed.',
-            true,
+            `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}), below the ${num(limits.keAlarmRatio, 2)} alarm line, ` +
+              `${pctFromOne(ke.slope)} on all phases alike: the magnets are likely weakened.`,
+            {
+              next:
+                'Check the temperature reading first (a sensor reading cold makes warm magnets look weak), then the history of overheating, overload and short circuits. ' +
+                "To confirm, an open-circuit voltage test at a known speed may be made only by the manufacturer's test procedure, by qualified people, " +
+                'with the speed held by a controlled drive or brake, the overspeed protection in service and instruments rated for the voltage. ' +
+                'Never disconnect the load of a machine that is free to run: a wind rotor or water runner without load can overspeed and run away.',
+              onSite: true,
+            },
           ),
         );
       }
@@ -359,8 +420,9 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
         finding(
           'ke-low',
           'warning',
-          `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}), below the ${num(limits.keWarnRatio, 2)} warning threshold ` +
-            `(alarm at ${num(limits.keAlarmRatio, 2)}). Watch the trend; check the magnet temperature reading and recent overheating.`,
+          `Ke corrected for load and magnet temperature is ${band} of nameplate (${measured}), below the ${num(limits.keWarnRatio, 2)} warning line ` +
+            `(alarm at ${num(limits.keAlarmRatio, 2)}).`,
+          { next: 'Watch the trend over the coming weeks; check the temperature reading and any recent overheating.' },
         ),
       );
     } else if (ke.slope > 2 - limits.keAlarmRatio) {
@@ -368,8 +430,11 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
         finding(
           'ke-above-nameplate',
           'warning',
-          `Ke is ${band} of nameplate (${measured}), more than ${num((1 - limits.keAlarmRatio) * 100)} % above it. Magnets do not get stronger: ` +
-            'check the nameplate Ke and its reference temperature, and the voltage transducer ratio.',
+          `Ke is ${band} of nameplate (${measured}), more than ${num((1 - limits.keAlarmRatio) * 100)} % above it. Magnets do not get stronger, so a setting or a measurement is wrong.`,
+          {
+            next: "Check the nameplate's Ke and its reference temperature first; then the voltage transducer ratio in the cabinet.",
+            onSite: true,
+          },
         ),
       );
     } else if (!sensorFault) {
@@ -378,24 +443,29 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
   }
 
   if (unbalancePct === undefined) {
-    findings.push(finding('no-unbalance', 'info', 'Not all three line voltages (vab, vbc, vca) were logged at speed: unbalance and shorted turns could not be judged.'));
+    findings.push(finding('no-unbalance', 'info', 'Not all three line voltages were logged at speed: unbalance and shorted turns could not be judged.'));
   } else if (!insufficient) {
     const weakest = fit.phaseKe === undefined ? undefined : weakestPhase(fit.phaseKe);
     const phaseNote =
       fit.phaseKe === undefined
         ? ''
-        : ` Phase Ke ratios a ${num(fit.phaseKe.a, 3)}, b ${num(fit.phaseKe.b, 3)}, c ${num(fit.phaseKe.c, 3)}` +
+        : ` Ke ratio by phase: a ${num(fit.phaseKe.a, 3)}, b ${num(fit.phaseKe.b, 3)}, c ${num(fit.phaseKe.c, 3)}` +
           (weakest === undefined ? '.' : `; phase ${weakest} is the weakest.`);
     if (unbalancePct > limits.unbalanceAlarmPct) {
       findings.push(
         finding(
           'shorted-turns',
           verdict === 'shorted-turns' ? 'alarm' : 'warning',
-          `Line-voltage unbalance is ${num(unbalancePct, 2)} % (median, NEMA MG 1 definition), above the ${num(limits.unbalanceAlarmPct, 1)} % threshold; ` +
+          `Line-voltage unbalance is ${num(unbalancePct, 2)} % (median, NEMA MG 1 definition), above the ${num(limits.unbalanceAlarmPct, 1)} % line; ` +
             `negative-sequence unbalance ${fit.negativeSequencePct === undefined ? 'unknown' : `${num(fit.negativeSequencePct, 2)} %`}.${phaseNote} ` +
-            'A shorted turn lowers one phase EMF. Rule out an unbalanced load and loose or corroded terminals first, ' +
-            'then measure phase resistances and insulation with the machine stopped.',
-          true,
+            'Shorted turns are suspected: a shorted turn lowers one phase and heats, and can burn while the machine turns.',
+          {
+            next:
+              "Stop the unit first by the manufacturer's remote or automatic means; do not approach it while it runs. " +
+              'Every check after that with the machine stopped, isolated and proven dead: rule out an unbalanced load and loose or corroded terminals, then measure the phase resistances. ' +
+              'Insulation-resistance testing applies a high test voltage: disconnect the rectifier, inverter and controller first.',
+            onSite: true,
+          },
         ),
       );
     } else {
@@ -403,7 +473,7 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
         finding(
           'unbalance-normal',
           'info',
-          `Line-voltage unbalance is ${num(unbalancePct, 2)} % (median), within the ${num(limits.unbalanceAlarmPct, 1)} % threshold.${phaseNote}`,
+          `Line-voltage unbalance is ${num(unbalancePct, 2)} % (median), within the ${num(limits.unbalanceAlarmPct, 1)} % line.${phaseNote}`,
         ),
       );
     }
@@ -414,8 +484,8 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
       finding(
         'no-temperature',
         'info',
-        `No statorC or ambientC readings: Ke was not corrected for magnet temperature (taken as the nameplate's ${num(nameplate.keRefC)} °C). ` +
-          `${nameplate.magnet} magnets change Ke by ${num(Math.abs(fit.coeffPctPerC), 3)} % per °C.`,
+        `No stator or ambient temperature readings: Ke was not corrected for magnet temperature (taken as the nameplate's reference, ${num(nameplate.keRefC)} °C). ` +
+          `${MAGNET_WORDS[nameplate.magnet]} magnets change Ke by ${num(Math.abs(fit.coeffPctPerC), 3)} % per °C.`,
       ),
     );
   }
@@ -464,6 +534,67 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
       limits,
     },
   };
+}
+
+/** Readable names of the magnet materials. */
+const MAGNET_WORDS: Record<MagnetMaterial, string> = { ndfeb: 'NdFeB', smco: 'SmCo', ferrite: 'Ferrite' };
+
+/** ISO-8601 UTC without milliseconds when they are zero. */
+function isoTime(ms: number): string {
+  return new Date(ms).toISOString().replace('.000Z', 'Z');
+}
+
+/** Samples above the overspeed limit: how many, the highest, the time above. */
+interface OverspeedRun {
+  readonly samples: number;
+  readonly peakRpm: number;
+  readonly peakTs: string;
+  readonly seconds: number;
+  readonly firstTs: string;
+  readonly lastTs: string;
+}
+
+/**
+ * Every sample above `maxRpm` (contract, section 5): speed from `rpm`, or
+ * from `hz` when the sensor is judged faulty (the sensor's reading where a
+ * sample has no frequency). No speed floor or transient filter applies. Time
+ * above the limit counts each such sample for half of each interval to a
+ * neighbour that is no more than a gap apart, as the energy integration does.
+ */
+function overspeedRun(cols: SampleColumns, order: Uint32Array | undefined, nameplate: DiagnosisNameplate, fromHz: boolean): OverspeedRun | undefined {
+  const n = cols.length;
+  const { rpm, hz } = cols.columns;
+  const hzToRpm = rpmFromHz(nameplate.poles, 1);
+  let samples = 0;
+  let peakRpm = -Infinity;
+  let peakMs = 0;
+  let firstMs = 0;
+  let lastMs = 0;
+  let seconds = 0;
+  let prevMs = NaN;
+  let prevAbove = false;
+  for (let k = 0; k < n; k++) {
+    const i = order === undefined ? k : (order[k] as number);
+    const f = hz[i] as number;
+    const speed = fromHz && f === f ? f * hzToRpm : (rpm[i] as number);
+    const ms = cols.ts[i] as number;
+    const above = speed > nameplate.maxRpm;
+    const dtS = (ms - prevMs) / 1000;
+    if (dtS > 0 && dtS <= OVERSPEED_GAP_S) seconds += (dtS / 2) * ((above ? 1 : 0) + (prevAbove ? 1 : 0));
+    if (above) {
+      if (samples === 0) firstMs = ms;
+      lastMs = ms;
+      samples++;
+      if (speed > peakRpm) {
+        peakRpm = speed;
+        peakMs = ms;
+      }
+    }
+    prevMs = ms;
+    prevAbove = above;
+  }
+  if (samples === 0) return undefined;
+  return { samples, peakRpm, peakTs: isoTime(peakMs), seconds, firstTs: isoTime(firstMs), lastTs: isoTime(lastMs) };
 }
 
 function weakestPhase(ke: { readonly a: number; readonly b: number; readonly c: number }): 'a' | 'b' | 'c' | undefined {

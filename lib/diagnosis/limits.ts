@@ -50,6 +50,13 @@ export const DEFAULT_LIMITS: ResolvedLimits = {
 export const TRANSIENT_NEIGHBOUR_MAX_S = 300;
 
 /**
+ * Neighbouring samples further apart than this are a gap when the time above
+ * the overspeed limit is added up, s: the same 10 minutes as the energy
+ * integration's gap (contract, section 5).
+ */
+export const OVERSPEED_GAP_S = 600;
+
+/**
  * The thresholds for a unit: `override` over the nameplate's own over the defaults.
  * @example resolveLimits({ keAlarmRatio: 0.93 }).keAlarmRatio // 0.93
  */

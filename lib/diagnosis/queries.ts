@@ -30,6 +30,7 @@ interface DueRow {
   unit_id: string;
   site_id: string;
   rated_rpm: number;
+  max_rpm: number;
   poles: number;
   ke_v_per_krpm: number;
   ke_ref_c: number;
@@ -50,7 +51,7 @@ interface DueRow {
 export async function getUnitsDueForDiagnosis({ db }: { db: Db }): Promise<UnitDue[]> {
   const rows = rowsOf<DueRow>(
     await db.execute(sql`
-      select u.key as unit_key, u.id as unit_id, u.site_id, u.rated_rpm, u.poles, u.ke_v_per_krpm, u.ke_ref_c,
+      select u.key as unit_key, u.id as unit_id, u.site_id, u.rated_rpm, u.max_rpm, u.poles, u.ke_v_per_krpm, u.ke_ref_c,
              u.magnet::text as magnet, u.magnet_temp_coeff_pct_per_c, u.phase_ohm, u.phase_mh, u.diagnosis,
              (extract(epoch from s.last_sample_ts) * 1000)::float8 as last_sample_ms, h.verdict::text as last_verdict
       from units u
@@ -80,6 +81,7 @@ export async function getUnitsDueForDiagnosis({ db }: { db: Db }): Promise<UnitD
       ...(r.last_verdict !== null && (VERDICTS as readonly string[]).includes(r.last_verdict) ? { lastVerdict: r.last_verdict as Verdict } : {}),
       nameplate: {
         ratedRpm: Number(r.rated_rpm),
+        maxRpm: Number(r.max_rpm),
         poles: Number(r.poles),
         keVPerKrpm: Number(r.ke_v_per_krpm),
         keRefC: Number(r.ke_ref_c),

@@ -39,3 +39,38 @@ export function noDataLabel(since: string | undefined): string {
 export function verdictLabel(verdict: string): string {
   return (VERDICT_LABEL as Record<string, string>)[verdict] ?? verdict;
 }
+
+/** Short heading of each finding code, for reports and screens. */
+export const FINDING_TITLE: Record<string, string> = {
+  'rows-skipped': 'Rows of the log skipped',
+  'unknown-columns': 'Columns ignored',
+  'insufficient-data': 'Not enough running data',
+  'samples-filtered': 'Samples left out',
+  'no-voltage-at-speed': 'No voltage while turning',
+  overspeed: 'Overspeed',
+  'no-frequency': 'Speed not cross-checked',
+  'speed-sensor-fault': 'Speed sensor suspect',
+  'magnets-with-frequency-speed': 'Magnets, judged on frequency',
+  demagnetised: 'Magnets weakened',
+  'ke-low': 'Ke low',
+  'ke-above-nameplate': 'Ke above nameplate',
+  'ke-normal': 'Ke within limits',
+  'no-unbalance': 'Unbalance not judged',
+  'shorted-turns': 'Shorted turns suspected',
+  'unbalance-normal': 'Line voltages balanced',
+  'no-temperature': 'No temperature correction',
+  corrections: 'Corrections applied',
+  'limits-invalid': 'Stored limits invalid',
+  'window-capped': 'Window shortened',
+};
+
+/**
+ * The heading of a finding, or its code when it has none.
+ * @example findingTitle('overspeed') // 'Overspeed'
+ */
+export function findingTitle(code: string): string {
+  return FINDING_TITLE[code] ?? code;
+}
+
+/** Severity words for people: what the severity asks of them. */
+export const SEVERITY_LABEL = { alarm: 'Alarm', warning: 'Warning', info: 'Note' } as const;
