@@ -18,6 +18,7 @@ import { createUnitDirectory } from '../../lib/ingest/unit-directory';
 import { writeBatch, type DecodedMessage } from '../../lib/ingest/writer';
 import { createPostgresDatabase } from '../support/backend';
 import { adminDatabaseUrl, decodedMessage, queryRows, registerFleet, testFleet, testTag, waitFor } from '../support/ingest';
+import { postgresServer, skipUnless } from '../support/services';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 1, hydroUnits: 0 });
@@ -28,7 +29,8 @@ function message(samples: Array<{ ts: number; kw: number }>): DecodedMessage {
   return decodedMessage(unit, samples.map((s) => ({ ts: s.ts, rpm: 250, vab: 230, kw: s.kw })));
 }
 
-describe('two ingest transactions on neighbouring samples of one unit', { timeout: 60_000 }, () => {
+// Needs a real PostgreSQL: three connections and row locks (PGlite has one connection).
+describe.skipIf(skipUnless(postgresServer, 'concurrent transactions'))('two ingest transactions on neighbouring samples of one unit', { timeout: 60_000 }, () => {
   let db: { url: string; drop(): Promise<void> };
   let handle: DatabaseHandle;
   let writers: IngestDatabase[];

@@ -1,10 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type BrowserContext } from 'playwright-core';
-import { mkdtempSync, mkdirSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
+import type { BrowserContext } from 'playwright-core';
+import { mkdirSync } from 'node:fs';
 import { eventually, startProductProcess, type RunningProduct } from '../support/product';
 import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
+import { chromium, launchChromium, skipUnless } from '../support/services';
 import mqtt from 'mqtt';
 
 // `npm start` as a user runs it: the build when needed, then the whole product
@@ -16,22 +15,8 @@ let browser: BrowserContext;
 
 beforeAll(async () => {
   product = await startProductProcess({ DEMO: 'on' });
-  // A fresh profile folder for every run, as our machines need.
-  browser = await chromium.launchPersistentContext(mkdtempSync(join(tmpdir(), 'millrace-chromium-')), {
-    executablePath: '/usr/bin/chromium',
-    headless: true,
-    viewport: { width: 1280, height: 900 },
-    args: [
-      '--headless',
-      '--no-sandbox',
-      '--disable-gpu',
-      '--disable-quic',
-      '--disable-background-networking',
-      '--disable-component-update',
-      '--disable-sync',
-      '--no-first-run',
-    ],
-  });
+  // Only the browser case needs Chromium; the others run without it.
+  if (chromium.available) browser = await launchChromium({ width: 1280, height: 900 });
 }, 300_000);
 
 afterAll(async () => {
@@ -76,7 +61,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
     expect(committed).toBeGreaterThan(50);
   });
 
-  it('shows the fleet list in a browser', async () => {
+  it.skipIf(skipUnless(chromium, 'fleet list in a browser'))('shows the fleet list in a browser', async () => {
     const page = await browser.newPage();
     await eventually(
       async () => {
@@ -99,7 +84,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
   it('shows an operator a bad message set aside, with its reason', async () => {
     const brokerUrl = product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`;
     const client = await mqtt.connectAsync(brokerUrl, { clientId: `bad-device-${product.port}` });
-    await client.publishAsync('millrace/ravenscarp-moor/rv-01/telemetry', JSON.stringify({ ts: Date.now(), rpm: 200, vab: 'abc' }), { qos: 1 });
+    await client.publishAsync('millrace/quorvenna-ildresk/qv-01/telemetry', JSON.stringify({ ts: Date.now(), rpm: 200, vab: 'abc' }), { qos: 1 });
     await client.endAsync();
     const html = await eventually(
       async () => {
@@ -110,6 +95,6 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
       'the bad sample to show as set aside',
     );
     expect(html).toContain('Telemetry set aside');
-    expect(html).toContain('millrace/ravenscarp-moor/rv-01/telemetry');
+    expect(html).toContain('millrace/quorvenna-ildresk/qv-01/telemetry');
   });
 });

@@ -19,6 +19,7 @@ import { NO_ENTRIES, NO_FIELDS } from '../../lib/ingest/decode';
 import { sampleBlockOf } from '../../lib/ingest/sample-block';
 import type { DecodedMessage } from '../../lib/ingest/writer';
 import { realBrokerUrl } from './backend';
+import { postgresServer } from './services';
 
 /** A telemetry message of `unit` holding `samples`, decoded as the ingester decodes one on arrival. */
 export function decodedMessage(unit: { siteId: string; id: string }, samples: readonly TelemetrySample[]): DecodedMessage {
@@ -264,7 +265,15 @@ export function spawnIngester(env: Record<string, string>, nodeArgs: readonly st
   let output = '';
   child.stdout!.on('data', (chunk: Buffer) => (output += chunk.toString()));
   child.stderr!.on('data', (chunk: Buffer) => (output += chunk.toString()));
-  const exited = new Promise<number | null>((resolve) => child.once('exit', (code, signal) => resolve(code ?? (signal ? -1 : null))));
+  const exited = new Promise<number | null>((resolve) => {
+    child.once('exit', (code, signal) => resolve(code ?? (signal ? -1 : null)));
+    // A spawn failure emits 'error' and no 'exit': it ends the ingester here
+    // (its reason in the output) rather than escaping as an unhandled error.
+    child.once('error', (error) => {
+      output += `cannot start the ingester (${process.execPath}): ${error.message}\n`;
+      resolve(null);
+    });
+  });
   // A test that fails before stopping it must not leave the ingester running.
   const killOnExit = () => child.kill('SIGKILL');
   process.once('exit', killOnExit);
@@ -281,7 +290,12 @@ export function spawnIngester(env: Record<string, string>, nodeArgs: readonly st
   };
 }
 
-/** The admin URL for making databases on the real PostgreSQL (TEST_DATABASE_URL, else DATABASE_URL, else the local server). */
+/**
+ * The admin URL for making databases on the real PostgreSQL (TEST_DATABASE_URL,
+ * else DATABASE_URL, else the local server): see `postgresServer` in
+ * test/support/services.ts, and guard the tests with `skipUnless(postgresServer, ...)`.
+ */
 export function adminDatabaseUrl(): string {
-  return process.env.TEST_DATABASE_URL || process.env.DATABASE_URL || 'postgres://postgres@127.0.0.1:5432/postgres';
+  if (!postgresServer.location) throw new Error(`no PostgreSQL server: ${postgresServer.missing}`);
+  return postgresServer.location;
 }

@@ -13,8 +13,14 @@ import { fileURLToPath } from 'node:url';
 import { parse } from 'yaml';
 import { freePort } from '../../lib/server/ports';
 
-/** The Mosquitto binary (Debian's package puts it here). */
-export const MOSQUITTO_BIN = process.env.MOSQUITTO_BIN || '/usr/sbin/mosquitto';
+import { mosquitto } from './services';
+
+/**
+ * The Mosquitto binary found by test/support/services.ts (MOSQUITTO_BIN, PATH,
+ * /usr/sbin); undefined when there is none. Guard tests with
+ * `skipUnless(mosquitto, ...)`.
+ */
+export const MOSQUITTO_BIN: string | undefined = mosquitto.location;
 
 const ROOT = resolve(fileURLToPath(new URL('.', import.meta.url)), '../..');
 
@@ -93,10 +99,19 @@ export async function startMosquitto(): Promise<TestMosquitto> {
   let child: ChildProcess | undefined;
 
   const start = async () => {
+    if (!MOSQUITTO_BIN) throw new Error(`cannot start Mosquitto: ${mosquitto.missing}`);
     const out = openSync(logPath, 'a');
     child = spawn(MOSQUITTO_BIN, ['-c', confPath], { stdio: ['ignore', out, out] });
     closeSync(out);
     const started = child;
+    // A spawn failure (ENOENT, EACCES) is an 'error' event: without a listener it
+    // would escape as an unhandled error; it rejects start() instead.
+    const failed = new Promise<never>((_, reject) =>
+      started.once('error', (error: NodeJS.ErrnoException) =>
+        reject(new Error(`cannot start Mosquitto (${MOSQUITTO_BIN}): ${error.code === 'ENOENT' ? 'no such file' : error.message}`)),
+      ),
+    );
+    failed.catch(() => {});
     // A test that fails before dispose() must not leave its broker running.
     const killOnExit = () => started.kill('SIGKILL');
     process.once('exit', killOnExit);
@@ -105,7 +120,7 @@ export async function startMosquitto(): Promise<TestMosquitto> {
       child!.once('exit', (code) => reject(new Error(`mosquitto exited with ${code}: ${readFileSync(logPath, 'utf8').slice(-2000)}`))),
     );
     exited.catch(() => {});
-    await Promise.race([waitForPort(port, 10_000), exited]);
+    await Promise.race([waitForPort(port, 10_000), exited, failed]);
   };
   const end = async (signal: NodeJS.Signals) => {
     const c = child;
@@ -116,7 +131,12 @@ export async function startMosquitto(): Promise<TestMosquitto> {
       c.kill(signal);
     });
   };
-  await start();
+  try {
+    await start();
+  } catch (error) {
+    rmSync(dir, { recursive: true, force: true });
+    throw error;
+  }
   return {
     url: `mqtt://127.0.0.1:${port}`,
     port,

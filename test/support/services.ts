@@ -60,15 +60,18 @@ function isExecutableFile(path: string): boolean {
   }
 }
 
-function findMosquitto(): ServiceProbe {
+type Env = Record<string, string | undefined>;
+
+/** Looks for a mosquitto binary as described above. */
+export function findMosquitto(env: Env = process.env): ServiceProbe {
   const name = 'Mosquitto';
-  const given = process.env.MOSQUITTO_BIN;
+  const given = env.MOSQUITTO_BIN;
   if (given) {
     return isExecutableFile(given)
       ? { name, available: true, location: given }
       : { name, available: false, missing: `MOSQUITTO_BIN=${given} is not an executable file` };
   }
-  const dirs = [...(process.env.PATH ?? '').split(delimiter).filter(Boolean), '/usr/sbin', '/usr/local/sbin'];
+  const dirs = [...(env.PATH ?? '').split(delimiter).filter(Boolean), '/usr/sbin', '/usr/local/sbin'];
   for (const dir of dirs) {
     const path = join(dir, 'mosquitto');
     if (isExecutableFile(path)) return { name, available: true, location: path };
@@ -80,9 +83,10 @@ function findMosquitto(): ServiceProbe {
   };
 }
 
-function findChromium(): ServiceProbe {
+/** Looks for Chromium as described above. */
+export function findChromium(env: Env = process.env): ServiceProbe {
   const name = 'Chromium';
-  const given = process.env.CHROMIUM_PATH;
+  const given = env.CHROMIUM_PATH;
   const path = given || '/usr/bin/chromium';
   if (isExecutableFile(path)) return { name, available: true, location: path };
   return {
@@ -97,20 +101,30 @@ function findChromium(): ServiceProbe {
 /** The local server tried when no URL is set. */
 export const DEFAULT_POSTGRES_ADMIN_URL = 'postgres://postgres@127.0.0.1:5432/postgres';
 
-async function findPostgres(): Promise<ServiceProbe> {
+/** Takes the URL set in the environment, else probes `localUrl` (2 s at most). */
+export async function findPostgres(env: Env = process.env, localUrl = DEFAULT_POSTGRES_ADMIN_URL): Promise<ServiceProbe> {
   const name = 'PostgreSQL';
-  const given = process.env.TEST_DATABASE_URL || process.env.DATABASE_URL;
+  const given = env.TEST_DATABASE_URL || env.DATABASE_URL;
   if (given) return { name, available: true, location: given };
-  const sql = postgres(DEFAULT_POSTGRES_ADMIN_URL, { max: 1, connect_timeout: 2, idle_timeout: 1, onnotice: () => {} });
+  const where = new URL(localUrl).host;
+  const sql = postgres(localUrl, { max: 1, connect_timeout: 2, idle_timeout: 1, onnotice: () => {} });
   try {
     await sql`select 1`;
-    return { name, available: true, location: DEFAULT_POSTGRES_ADMIN_URL };
+    return { name, available: true, location: localUrl };
   } catch (error) {
-    const why = (error as { code?: string }).code ?? (error as Error).message;
+    const code = (error as { code?: string }).code;
+    const why =
+      code === 'ECONNREFUSED'
+        ? 'connection refused'
+        : code === 'CONNECT_TIMEOUT'
+          ? 'no answer within 2 s'
+          : code === '28P01' || code === '28000'
+            ? 'user postgres was refused'
+            : (error as Error).message;
     return {
       name,
       available: false,
-      missing: `needs a PostgreSQL server: set DATABASE_URL (or TEST_DATABASE_URL), or run one at 127.0.0.1:5432 that user postgres reaches without a password (tried it: ${why})`,
+      missing: `needs a PostgreSQL server: set DATABASE_URL (or TEST_DATABASE_URL), or run one at ${where} that user postgres reaches without a password (tried it: ${why})`,
     };
   } finally {
     await sql.end({ timeout: 1 }).catch(() => {});
@@ -138,15 +152,24 @@ function currentFile(): string {
   return path ? relative(process.cwd(), path) : '(unknown test file)';
 }
 
-function record(line: string): void {
+/** One line of the skip log: JSON, read back by test/support/global-setup.ts. */
+export interface SkipRecord {
+  outcome: 'skipped' | 'failed';
+  file: string;
+  what: string;
+  services: Array<{ name: string; missing: string }>;
+}
+
+function record(outcome: SkipRecord['outcome'], file: string, what: string, absent: readonly ServiceProbe[]): void {
+  const entry: SkipRecord = { outcome, file, what, services: absent.map((p) => ({ name: p.name, missing: p.missing ?? '' })) };
   let log: string | undefined;
   try {
     log = inject('millraceSkipLog');
   } catch {
     log = undefined;
   }
-  if (log) appendFileSync(log, `${line}\n`);
-  process.stdout.write(`${line}\n`);
+  if (log) appendFileSync(log, `${JSON.stringify(entry)}\n`);
+  process.stdout.write(`${outcome}: ${file} (${what}): ${absent.map((p) => `${p.name} ${p.missing}`).join('; ')}\n`);
 }
 
 /**
@@ -161,16 +184,16 @@ export function skipUnless(probes: ServiceProbe | readonly ServiceProbe[], what:
   const absent = list.filter((p) => !p.available);
   if (absent.length === 0) return false;
   const file = currentFile();
-  for (const probe of absent) {
-    if (servicesRequired) {
+  if (servicesRequired) {
+    record('failed', file, what, absent);
+    for (const probe of absent) {
       const message = requiredMessage(probe, `${file} (${what})`);
-      record(`failed: ${file} (${what}): ${probe.name} missing: ${probe.missing}`);
       it(`${what}: needs ${probe.name}`, () => {
         throw new Error(message);
       });
-    } else {
-      record(`skipped: ${file} (${what}): ${probe.missing}`);
     }
+  } else {
+    record('skipped', file, what, absent);
   }
   return true;
 }
@@ -184,10 +207,10 @@ export function requireService(probe: ServiceProbe, what: string, ctx: { skip(no
   if (probe.available) return;
   const file = currentFile();
   if (servicesRequired) {
-    record(`failed: ${file} (${what}): ${probe.name} missing: ${probe.missing}`);
+    record('failed', file, what, [probe]);
     throw new Error(requiredMessage(probe, `${file} (${what})`));
   }
-  record(`skipped: ${file} (${what}): ${probe.missing}`);
+  record('skipped', file, what, [probe]);
   ctx.skip(probe.missing);
 }
 
