@@ -29,6 +29,8 @@ const UNITS: ReadonlyArray<{ id: string; options: SyntheticOptions; verdict: str
   { id: 'lv-shorted', options: { phaseEmfFactors: [1, 1, 0.93] }, verdict: 'shorted-turns' },
   { id: 'lv-sensor', options: { speedSensorFactor: 0.9 }, verdict: 'speed-sensor-fault' },
   { id: 'lv-idle', options: { speedRange: [0.02, 0.1] }, verdict: 'insufficient-data' },
+  // TEST_NAMEPLATE: ratedRpm 300, maxRpm 420. Within the last 6 hours, 20 samples at 1.5 of rated (450 rpm).
+  { id: 'lv-overspeed', options: { speedShare: (i) => (i >= 2500 && i < 2520 ? 1.5 : 0.3 + 0.8 * ((i % 360) / 359)) }, verdict: 'healthy' },
 ];
 
 const fleet = fleetSchema.parse({
@@ -94,6 +96,18 @@ describe(`live diagnosis (${backendDescription()})`, () => {
     const detail = rows.find((h) => h.unit_id === 'lv-healthy')!.detail as { samplesTotal: number; speedSource: string };
     expect(detail.samplesTotal).toBe(2161);
     expect(await historyCount()).toBe(UNITS.length);
+  });
+
+  it('reports speeds above maxRpm as an overspeed alarm in the stored findings, without changing the verdict', async () => {
+    const rows = rowsOf<{ unit_id: string; verdict: string; findings: Array<{ code: string; severity: string; message: string }> }>(
+      await t.handle.db.execute(sql`select u.id as unit_id, h.verdict::text as verdict, h.findings from unit_health h join units u on u.key = h.unit_key`),
+    );
+    const over = rows.find((r) => r.unit_id === 'lv-overspeed')!;
+    const f = over.findings.find((x) => x.code === 'overspeed');
+    expect(f?.severity).toBe('alarm');
+    expect(f!.message).toContain('20 samples above the 420 rpm overspeed limit');
+    expect(over.verdict).toBe('healthy');
+    for (const r of rows.filter((x) => x.unit_id !== 'lv-overspeed')) expect(r.findings.some((x) => x.code === 'overspeed'), r.unit_id).toBe(false);
   });
 
   it('leaves units alone that received nothing new', async () => {
