@@ -37,9 +37,9 @@ describe('backfill against the embedded broker', () => {
 
   it('publishes every sample of the history, ending now, less the offline unit gap', async () => {
     const endMs = Date.now() - 1000;
-    const units = fleet.units.filter((u) => u.id === 'rv-01' || u.id === 'ks-03');
+    const units = fleet.units.filter((u) => u.id === 'qv-01' || u.id === 'pd-03');
     const sites = fleet.sites.filter((s) => units.some((u) => u.siteId === s.id));
-    // ks-03's communications gap starts 5.5 days after the epoch: put it 30 minutes before the end.
+    // pd-03's communications gap starts 5.5 days after the epoch: put it 30 minutes before the end.
     const faultEpochMs = endMs - 5.5 * DAY - 30 * 60_000;
     const result = await backfill({
       brokerUrl: broker.url,
@@ -53,28 +53,28 @@ describe('backfill against the embedded broker', () => {
       log,
       clientIdPrefix: 'test-history',
     });
-    // 0.05 days at 10 s: 432 sample times per unit; the last 30 minutes of ks-03 (181 times) fall in its gap.
+    // 0.05 days at 10 s: 432 sample times per unit; the last 30 minutes of pd-03 (181 times) fall in its gap.
     const perUnit = 432;
     const inGap = 181;
     expect(result.units).toBe(2);
     expect(result.samplesInGaps).toBe(inGap);
     expect(result.samples).toBe(2 * perUnit - inGap);
-    // rv-01: 5 messages of up to 100; ks-03: 3 (the third with the 51 samples before its gap).
+    // qv-01: 5 messages of up to 100; pd-03: 3 (the third with the 51 samples before its gap).
     expect(result.messages).toBe(8);
     await new Promise<void>((resolve, reject) => {
       const until = Date.now() + 5000;
       const poll = () => (messages >= 8 ? resolve() : Date.now() > until ? reject(new Error('messages missing')) : setTimeout(poll, 20));
       poll();
     });
-    expect(samplesByUnit.get('rv-01')!.length).toBe(perUnit);
-    expect(samplesByUnit.get('ks-03')!.length).toBe(perUnit - inGap);
-    const times = samplesByUnit.get('rv-01')!.map((s) => parseTimestampMs(s.ts)!);
+    expect(samplesByUnit.get('qv-01')!.length).toBe(perUnit);
+    expect(samplesByUnit.get('pd-03')!.length).toBe(perUnit - inGap);
+    const times = samplesByUnit.get('qv-01')!.map((s) => parseTimestampMs(s.ts)!);
     expect(times.at(-1)).toBe(endMs);
     expect(times[0]).toBe(endMs - (perUnit - 1) * 10_000);
     expect(times.every((t, i) => i === 0 || t - times[i - 1]! === 10_000)).toBe(true);
     const gapStart = endMs - 30 * 60_000;
-    expect(samplesByUnit.get('ks-03')!.every((s) => parseTimestampMs(s.ts)! < gapStart)).toBe(true);
-    for (const s of [...samplesByUnit.get('rv-01')!, ...samplesByUnit.get('ks-03')!]) {
+    expect(samplesByUnit.get('pd-03')!.every((s) => parseTimestampMs(s.ts)! < gapStart)).toBe(true);
+    for (const s of [...samplesByUnit.get('qv-01')!, ...samplesByUnit.get('pd-03')!]) {
       expect(parseTelemetrySample(s).ok).toBe(true);
     }
     expect(result.from).toBe(new Date(endMs - (perUnit - 1) * 10_000).toISOString());

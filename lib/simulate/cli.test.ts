@@ -46,8 +46,8 @@ describe('parseSimulateArgs', () => {
 describe('fleetSubset', () => {
   it('keeps the first units and only their sites', () => {
     const sub = fleetSubset(2);
-    expect(sub.units.map((u) => u.id)).toEqual(['rv-01', 'rv-02']);
-    expect(sub.sites.map((s) => s.id)).toEqual(['ravenscarp-moor']);
+    expect(sub.units.map((u) => u.id)).toEqual(['qv-01', 'qv-02']);
+    expect(sub.sites.map((s) => s.id)).toEqual(['quorvenna-ildresk']);
     expect(fleetSubset(undefined)).toBe(demoFleet);
     expect(() => fleetSubset(99)).toThrow(/--units expects at most 14/);
   });
@@ -97,7 +97,7 @@ describe('runSimulate', () => {
     const t = io({ MQTT_URL: broker.url }, interrupted);
     const running = runSimulate(['--backfill', '0.01', '--live', '--units', '2', '--rate', '10', '--backfill-rate', '0'], t.io, log);
     const until = Date.now() + 10_000;
-    while (!topics.includes('millrace/ravenscarp-moor/rv-02/presence') && Date.now() < until) await new Promise((r) => setTimeout(r, 20));
+    while (!topics.includes('millrace/quorvenna-ildresk/qv-02/presence') && Date.now() < until) await new Promise((r) => setTimeout(r, 20));
     interrupt('SIGINT');
     expect(await running).toBe(0);
     const out = t.out.join('');

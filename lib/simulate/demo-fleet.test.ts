@@ -1,15 +1,23 @@
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { fleetSchema } from '../contract/nameplate';
-import { parseTelemetrySample } from '../contract/telemetry';
+import { parseTelemetrySample, type TelemetrySample } from '../contract/telemetry';
+import { diagnoseSamples, type DiagnosisResult } from '../diagnosis/diagnose';
 import { hydroPowerKw } from '../energy/hydro-power';
 import { REFERENCE_AIR_DENSITY_KG_M3 } from '../energy/air-density';
 import { lineVoltageUnbalancePct } from '../physics/unbalance';
 import { DEMO_FAULT_LEAD_DAYS, demoClimates, demoFleet, demoUnitScenarios } from './demo-fleet';
-import { buildFleetModels } from './fleet-models';
+import type { FaultKind } from './faults';
+import { buildFleetModels, type SimulatedUnit } from './fleet-models';
 import { LOAD_POWER_FACTOR, ratedWindMs } from './machine';
 import { generatorTerminals } from '../physics/generator-model';
 
 const fleet = fleetSchema.parse(demoFleet);
+
+/** Median of a non-empty list (the middle value; the upper one of two). */
+function median(xs: readonly number[]): number {
+  if (xs.length === 0) throw new RangeError('median of no values');
+  return [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
+}
 
 /** Betz limit of the power coefficient, 16/27 (Betz 1920, any wind-energy text). */
 const BETZ = 16 / 27;
@@ -114,31 +122,145 @@ describe('demo fleet samples', () => {
   });
 
   it('show each fault on its unit over the last day, and no false signs on the healthy ones', () => {
-    const day = buildFleetModels(fleet, { seed: 3 }, endMs);
-    const stats = new Map<string, { unb: number[]; ratio: number[]; overspeed: number }>();
+    // A fixed day, so that every unit turns and every check below has samples to judge.
+    const dayEndMs = Date.UTC(2026, 2, 10, 12);
+    const day = buildFleetModels(fleet, { seed: 3 }, dayEndMs);
+    const faultsSeen = new Set<string>();
     for (const u of day.units) {
-      const s = { unb: [] as number[], ratio: [] as number[], overspeed: 0 };
-      for (let t = endMs - 86_400_000; t <= endMs; t += 20_000) {
+      const id = u.nameplate.id;
+      const kinds = new Set(u.scenario.faults.map((f) => f.kind));
+      const s = { atSpeed: 0, unb: [] as number[], ratio: [] as number[], overspeed: 0 };
+      for (let t = dayEndMs - 86_400_000; t <= dayEndMs; t += 20_000) {
         const { sample, truth } = u.model.step(t);
+        if (sample.rpm > u.nameplate.maxRpm) s.overspeed++;
         if (truth.rpm < 0.3 * u.nameplate.ratedRpm) continue;
+        s.atSpeed++;
         if (sample.vbc !== undefined) s.unb.push(lineVoltageUnbalancePct(sample.vab!, sample.vbc, sample.vca!)!);
         if (sample.hz !== undefined) s.ratio.push(sample.hz / ((u.nameplate.poles * sample.rpm) / 120));
-        if (sample.rpm > u.nameplate.maxRpm) s.overspeed++;
       }
-      stats.set(u.nameplate.id, s);
+      expect(s.atSpeed, `${id}: samples at speed`).toBeGreaterThan(500);
+      // Three line voltages exactly when the logger has them; then the unbalance is judged.
+      expect(s.unb.length, `${id}: unbalance readings`).toBe(u.scenario.channels.threePhase ? s.atSpeed : 0);
+      if (kinds.has('shorted-turn')) {
+        expect(median(s.unb), id).toBeGreaterThan(2);
+        faultsSeen.add('shorted-turn');
+      } else if (s.unb.length > 0) expect(median(s.unb), id).toBeLessThan(0.5);
+      // Frequency exactly when the logger has it; then the speed reading is judged.
+      expect(s.ratio.length, `${id}: speed ratios`).toBe(u.scenario.channels.hz ? s.atSpeed : 0);
+      if (kinds.has('speed-sensor-low')) {
+        expect(median(s.ratio), id).toBeCloseTo(1 / 0.95, 2);
+        faultsSeen.add('speed-sensor-low');
+      } else if (s.ratio.length > 0) expect(Math.abs(median(s.ratio) - 1), id).toBeLessThan(0.005);
+      if (kinds.has('overspeed')) {
+        expect(s.overspeed, id).toBeGreaterThan(10);
+        faultsSeen.add('overspeed');
+      } else expect(s.overspeed, id).toBe(0);
     }
-    const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
-    for (const [id, s] of stats) {
-      if (s.unb.length > 0) {
-        if (id === 'mg-02') expect(median(s.unb), id).toBeGreaterThan(2);
-        else expect(median(s.unb), id).toBeLessThan(0.5);
+    expect(faultsSeen).toEqual(new Set(['shorted-turn', 'speed-sensor-low', 'overspeed']));
+  });
+});
+
+describe('demo fleet diagnosed', () => {
+  /**
+   * The last DIAGNOSIS_WINDOW_HOURS (6, the live default) of each unit at
+   * the history's 10 s, through the contract's sample schema and the
+   * diagnosis the product runs; two fixed ends, winter and summer.
+   */
+  const ends = [Date.UTC(2026, 0, 15, 12), Date.UTC(2026, 6, 15, 3)];
+  let runs: { unit: SimulatedUnit; samples: TelemetrySample[]; result: DiagnosisResult }[][] = [];
+  beforeAll(() => {
+    runs = ends.map((endMs) => {
+      const { units } = buildFleetModels(fleet, {}, endMs);
+      return units.map((u) => {
+        const samples: TelemetrySample[] = [];
+        for (let t = endMs - 6 * 3_600_000; t <= endMs; t += 10_000) {
+          const parsed = parseTelemetrySample(u.model.step(t).sample);
+          if (!parsed.ok) throw new Error(`${u.nameplate.id}: ${parsed.problems.join('; ')}`);
+          samples.push(parsed.sample);
+        }
+        return { unit: u, samples, result: diagnoseSamples({ nameplate: u.nameplate, samples }) };
+      });
+    });
+  });
+  /** The runs, never none (a loop over nothing would check nothing). */
+  const allRuns = () => {
+    expect(runs).toHaveLength(ends.length);
+    return runs;
+  };
+  const faultKinds = (u: SimulatedUnit) => new Set<FaultKind>(u.scenario.faults.map((f) => f.kind));
+  const MACHINE_FAULTS: readonly FaultKind[] = ['demagnetisation', 'shorted-turn', 'speed-sensor-low'];
+  /** Machines with nothing wrong with them: no machine or sensor fault, and a free speed to fit Ke over. */
+  const healthyMachine = (u: SimulatedUnit) => u.scenario.load === 'rectifier' && !MACHINE_FAULTS.some((k) => faultKinds(u).has(k));
+
+  it('reads every healthy unit a little off its nameplate, 0.985–1.02, not all alike', () => {
+    for (const run of allRuns()) {
+      const healthy = run.filter((r) => healthyMachine(r.unit));
+      expect(healthy.length).toBeGreaterThanOrEqual(8);
+      for (const { unit, result } of healthy) {
+        expect(result.verdict, unit.nameplate.id).toBe('healthy');
+        expect(result.keRatio, unit.nameplate.id).not.toBeNull();
+        expect(result.keRatio!, unit.nameplate.id).toBeGreaterThanOrEqual(0.985);
+        expect(result.keRatio!, unit.nameplate.id).toBeLessThanOrEqual(1.02);
+        // The diagnosis finds the machine as built.
+        expect(Math.abs(result.keRatio! - unit.model.keAsBuilt), unit.nameplate.id).toBeLessThan(0.004);
       }
-      if (s.ratio.length > 0) {
-        if (id === 'ks-02') expect(median(s.ratio), id).toBeCloseTo(1 / 0.95, 2);
-        else expect(Math.abs(median(s.ratio) - 1), id).toBeLessThan(0.005);
+      const ratios = healthy.map((r) => r.result.keRatio!);
+      expect(Math.max(...ratios) - Math.min(...ratios)).toBeGreaterThanOrEqual(0.01);
+    }
+  });
+
+  it('reads each faulty unit as its fault', () => {
+    const seen = new Set<string>();
+    for (const run of allRuns()) {
+      for (const { unit, result } of run) {
+        const id = unit.nameplate.id;
+        const kinds = faultKinds(unit);
+        if (kinds.has('demagnetisation')) {
+          // Seven days at 1 % a day: clearly under the 0.95 line, the whole interval too.
+          expect(result.verdict, id).toBe('demagnetised');
+          expect(result.keRatio!, id).toBeLessThan(0.945);
+          expect(result.keRatioHigh!, id).toBeLessThan(0.95);
+          seen.add('demagnetisation');
+        }
+        if (kinds.has('shorted-turn')) {
+          expect(result.verdict, id).toBe('shorted-turns');
+          expect(result.unbalancePct!, id).toBeGreaterThan(2);
+          seen.add('shorted-turn');
+        }
+        if (kinds.has('speed-sensor-low')) {
+          expect(result.verdict, id).toBe('speed-sensor-fault');
+          expect(Math.abs(result.speedRatio! - 1), id).toBeGreaterThan(0.02);
+          seen.add('speed-sensor-low');
+        }
       }
-      if (id === 'rv-04') expect(s.overspeed, id).toBeGreaterThan(10);
-      else expect(s.overspeed, id).toBe(0);
+    }
+    expect(seen).toEqual(new Set(['demagnetisation', 'shorted-turn', 'speed-sensor-low']));
+  });
+
+  it('runs the overspeed unit above its nameplate maxRpm in the samples it sends', () => {
+    for (const run of allRuns()) {
+      const over = run.filter((r) => faultKinds(r.unit).has('overspeed'));
+      expect(over.length).toBeGreaterThanOrEqual(1);
+      for (const { unit, samples } of over) {
+        const above = samples.filter((s) => s.rpm > unit.nameplate.maxRpm);
+        expect(above.length, unit.nameplate.id).toBeGreaterThanOrEqual(5);
+      }
+      for (const { unit, samples } of run.filter((r) => !faultKinds(r.unit).has('overspeed'))) {
+        expect(samples.filter((s) => s.rpm > unit.nameplate.maxRpm), unit.nameplate.id).toEqual([]);
+      }
+    }
+  });
+
+  it('cannot judge the hydro set held at one speed by its load controller, and says so', () => {
+    for (const run of allRuns()) {
+      const governed = run.filter((r) => r.unit.nameplate.kind === 'hydro' && r.unit.scenario.load === 'resistive');
+      expect(governed.length).toBe(1);
+      for (const { unit, result } of governed) {
+        expect(result.verdict, unit.nameplate.id).toBe('insufficient-data');
+        expect(result.findings.map((f) => f.code), unit.nameplate.id).toContain('insufficient-data');
+        // Why: its speed never spreads over the 10 % of rated the Ke fit needs.
+        expect(result.details.speedMaxRpm! - result.details.speedMinRpm!).toBeLessThan(0.1 * unit.nameplate.ratedRpm);
+      }
     }
   });
 });

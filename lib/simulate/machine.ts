@@ -4,7 +4,8 @@
  * faults, and the sensors that report it all as a telemetry sample.
  *
  * Electrical model: lib/physics/generator-model (E = V + I·(R + jX) per
- * phase, E from Ke at magnet temperature, R copper at winding temperature,
+ * phase, E from the machine's true Ke at magnet temperature — the
+ * nameplate's times a per-unit as-built factor, see asBuiltKeFactor — R copper at winding temperature,
  * X = 2π·f·L, f = poles·rpm/120). The load is chosen per unit
  * (`UnitScenario.load`):
  * - `rectifier`: a rectifier and grid-tie inverter; the generator sees a
@@ -63,6 +64,26 @@ const RESTART_MS = 10 * 60_000;
 /** Winding temperature at which the rated current is worked out, °C. */
 const RATED_WINDING_C = 80;
 
+/**
+ * Spread of the machines' true Ke about their nameplate: a real machine
+ * reads a percent or two off its plate (magnet grade, air gap and winding
+ * tolerances; common practice, no published source). Each unit's factor lies
+ * in [AS_BUILT_KE_MIN, AS_BUILT_KE_MAX).
+ */
+export const AS_BUILT_KE_MIN = 0.99;
+export const AS_BUILT_KE_MAX = 1.015;
+
+/**
+ * The true Ke of unit `unitId` over its nameplate Ke, drawn from the unit id
+ * alone: the same machine whatever the run's seed, and different machines
+ * differ.
+ * @example asBuiltKeFactor('qv-01') === asBuiltKeFactor('qv-01') // true, a number in [0.99, 1.015)
+ */
+export function asBuiltKeFactor(unitId: string): number {
+  const u = mulberry32(seedFor(0, `as-built-ke/${unitId}`))();
+  return AS_BUILT_KE_MIN + (AS_BUILT_KE_MAX - AS_BUILT_KE_MIN) * u;
+}
+
 /** How a unit's logger writes `ts`. */
 export type TimestampFormat = 'epoch-ms' | 'iso-utc' | 'iso-local';
 
@@ -87,6 +108,8 @@ export interface UnitScenario {
   /** Resource at this unit over the site's (wind: speed-up of its spot; hydro: share of the intake). */
   readonly exposure: number;
   readonly faults: readonly FaultPlan[];
+  /** The machine's true Ke over its nameplate Ke (0.8–1.2); default {@link asBuiltKeFactor} of the unit id. */
+  readonly keAsBuilt?: number | undefined;
 }
 
 /** Scenario of a unit the demo does not describe: healthy, every channel, UTC ISO times. */
@@ -170,7 +193,10 @@ export function ratedWindMs(np: Nameplate): number {
  * and returns the published sample with the truth behind it.
  */
 export class UnitModel {
+  /** The machine as built: its true Ke is the nameplate's times {@link keAsBuilt}; the rest as the nameplate says. */
   readonly spec: GeneratorSpec;
+  /** True Ke over nameplate Ke. */
+  readonly keAsBuilt: number;
   readonly powerFactor: number;
   /** Phase current at rated power and speed, A. */
   readonly ratedCurrentA: number;
@@ -204,8 +230,10 @@ export class UnitModel {
   ) {
     scenario.faults.forEach(validateFaultPlan);
     const np = nameplate;
+    this.keAsBuilt = scenario.keAsBuilt ?? asBuiltKeFactor(np.id);
+    if (!(this.keAsBuilt >= 0.8 && this.keAsBuilt <= 1.2)) throw new RangeError(`unit ${np.id}: keAsBuilt must be from 0.8 to 1.2, got ${this.keAsBuilt}`);
     this.spec = {
-      keVPerKrpm: np.keVPerKrpm,
+      keVPerKrpm: np.keVPerKrpm * this.keAsBuilt,
       keRefC: np.keRefC,
       magnet: np.magnet,
       magnetTempCoeffPctPerC: np.magnetTempCoeffPctPerC,
@@ -221,7 +249,7 @@ export class UnitModel {
       magnetC: RATED_WINDING_C,
       windingC: RATED_WINDING_C,
     });
-    this.ratedCurrentA = rated?.ia ?? (np.ratedKw * 1000) / (SQRT3 * ((np.keVPerKrpm * np.ratedRpm) / 1000) * this.powerFactor);
+    this.ratedCurrentA = rated?.ia ?? (np.ratedKw * 1000) / (SQRT3 * ((this.spec.keVPerKrpm * np.ratedRpm) / 1000) * this.powerFactor);
     const u = (what: string) => mulberry32(seedFor(options.seed, `${np.siteId}/${np.id}/${what}`));
     this.normal = gaussian(u('sensors'));
     // Units scan at their own moments, not in step.

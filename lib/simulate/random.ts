@@ -26,7 +26,7 @@ export function mulberry32(seed: number): Uniform {
 /**
  * A 32-bit seed mixed from a number and a name (FNV-1a over the name, then
  * an integer finaliser), so each unit and each purpose gets its own stream.
- * @example seedFor(7, 'rv-01') === seedFor(7, 'rv-01') // true
+ * @example seedFor(7, 'qv-01') === seedFor(7, 'qv-01') // true
  */
 export function seedFor(seed: number, name: string): number {
   let h = (0x811c9dc5 ^ (seed >>> 0)) >>> 0;

@@ -53,7 +53,7 @@ describe('startSimulator against the embedded broker', () => {
     clients.push(await subscriber(broker.url, 'test-watch', received));
     const sim = await startSimulator({
       brokerUrl: broker.url,
-      fleet: pick('rv-01', 'ks-03', 'mg-02'),
+      fleet: pick('qv-01', 'pd-03', 'sd-02'),
       rateHz: 10,
       samplesPerMessage: 2,
       log,
@@ -66,30 +66,30 @@ describe('startSimulator against the embedded broker', () => {
       received.filter((r) => r.topic.endsWith(`/${unit}/presence`)).map((r) => r.text);
     const telemetry = (unit: string) => received.filter((r) => r.topic.endsWith(`/${unit}/telemetry`));
     try {
-      await waitFor('presence online', () => ['rv-01', 'ks-03', 'mg-02'].every((u) => presence(u).includes('online')));
-      expect(received.some((r) => r.topic === 'millrace/ravenscarp-moor/rv-01/presence')).toBe(true);
-      await waitFor('telemetry of every unit', () => ['rv-01', 'ks-03', 'mg-02'].every((u) => telemetry(u).length >= 2));
+      await waitFor('presence online', () => ['qv-01', 'pd-03', 'sd-02'].every((u) => presence(u).includes('online')));
+      expect(received.some((r) => r.topic === 'millrace/quorvenna-ildresk/qv-01/presence')).toBe(true);
+      await waitFor('telemetry of every unit', () => ['qv-01', 'pd-03', 'sd-02'].every((u) => telemetry(u).length >= 2));
       for (const message of received.filter((r) => r.topic.endsWith('/telemetry'))) {
         const samples = JSON.parse(message.text) as unknown[];
         expect(Array.isArray(samples)).toBe(true);
         expect(samples.length).toBe(2);
         for (const s of samples) expect(parseTelemetrySample(s).ok).toBe(true);
       }
-      // ks-03 drops off uncleanly one second in; the broker publishes its will.
-      await waitFor('last will of ks-03', () => presence('ks-03').includes('offline'));
-      expect(sim.state().unitsOffline).toEqual(['ks-03']);
-      const countAtDrop = telemetry('ks-03').length;
+      // pd-03 drops off uncleanly one second in; the broker publishes its will.
+      await waitFor('last will of pd-03', () => presence('pd-03').includes('offline'));
+      expect(sim.state().unitsOffline).toEqual(['pd-03']);
+      const countAtDrop = telemetry('pd-03').length;
       await new Promise((r) => setTimeout(r, 500));
-      expect(telemetry('ks-03').length).toBeLessThanOrEqual(countAtDrop + 3);
-      expect(telemetry('rv-01').length).toBeGreaterThan(2);
+      expect(telemetry('pd-03').length).toBeLessThanOrEqual(countAtDrop + 3);
+      expect(telemetry('qv-01').length).toBeGreaterThan(2);
 
       // A newcomer gets the will as the retained presence.
       const late: Received[] = [];
       clients.push(await subscriber(broker.url, 'test-late', late));
-      await waitFor('retained presence', () => late.some((r) => r.topic.endsWith('/ks-03/presence')));
-      const retained = late.find((r) => r.topic.endsWith('/ks-03/presence'))!;
-      expect(retained).toEqual({ topic: 'millrace/kestrel-saddle/ks-03/presence', text: 'offline', retain: true });
-      expect(late.find((r) => r.topic.endsWith('/rv-01/presence'))).toMatchObject({ text: 'online', retain: true });
+      await waitFor('retained presence', () => late.some((r) => r.topic.endsWith('/pd-03/presence')));
+      const retained = late.find((r) => r.topic.endsWith('/pd-03/presence'))!;
+      expect(retained).toEqual({ topic: 'millrace/pludvarro-emskeen/pd-03/presence', text: 'offline', retain: true });
+      expect(late.find((r) => r.topic.endsWith('/qv-01/presence'))).toMatchObject({ text: 'online', retain: true });
     } finally {
       await sim.stop();
     }
@@ -99,17 +99,17 @@ describe('startSimulator against the embedded broker', () => {
     expect(state.messagesSent).toBeGreaterThan(5);
     expect(state.samplesDropped).toBe(0);
     // Everything acknowledged reached the subscriber.
-    await waitFor('last messages', () => presence('rv-01').at(-1) === 'offline');
+    await waitFor('last messages', () => presence('qv-01').at(-1) === 'offline');
     const delivered = received
       .filter((r) => r.topic.endsWith('/telemetry'))
       .reduce((n, r) => n + (JSON.parse(r.text) as unknown[]).length, 0);
     expect(delivered).toBeGreaterThanOrEqual(state.samplesSent);
-    expect(presence('mg-02').at(-1)).toBe('offline');
+    expect(presence('sd-02').at(-1)).toBe('offline');
   });
 
   it('rejects with the broker URL when nothing listens there', async () => {
     const url = `mqtt://127.0.0.1:${await freePort()}`;
-    await expect(startSimulator({ brokerUrl: url, fleet: pick('rv-01'), log })).rejects.toThrow(
+    await expect(startSimulator({ brokerUrl: url, fleet: pick('qv-01'), log })).rejects.toThrow(
       new RegExp(`${url.replace(/[.]/g, '\\.')}.*connection refused.*npm start.*MQTT_URL`),
     );
   });

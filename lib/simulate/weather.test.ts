@@ -41,12 +41,12 @@ describe('time of day and year', () => {
 });
 
 describe('SiteWeather', () => {
-  const w = new SiteWeather('ravenscarp-moor', 'Europe/London', demoClimates['ravenscarp-moor']!, 1);
+  const w = new SiteWeather('quorvenna-ildresk', 'Europe/London', demoClimates['quorvenna-ildresk']!, 1);
   const january = Date.UTC(2026, 0, 10);
   const july = Date.UTC(2026, 6, 10);
 
   it('is the same for the same seed and time', () => {
-    const again = new SiteWeather('ravenscarp-moor', 'Europe/London', demoClimates['ravenscarp-moor']!, 1);
+    const again = new SiteWeather('quorvenna-ildresk', 'Europe/London', demoClimates['quorvenna-ildresk']!, 1);
     expect(again.windMeanMs(july)).toBe(w.windMeanMs(july));
     expect(again.airC(july)).toBe(w.airC(july));
   });
@@ -69,7 +69,7 @@ describe('SiteWeather', () => {
   });
 
   it('thins the air with height: density at 1950 m well below sea-level density', () => {
-    const high = new SiteWeather('tumbleford-run', 'America/Denver', demoClimates['tumbleford-run']!, 1);
+    const high = new SiteWeather('vuskamel-orrotheen', 'America/Denver', demoClimates['vuskamel-orrotheen']!, 1);
     expect(high.airDensityKgM3(july)).toBeLessThan(1.05);
     expect(high.airDensityKgM3(july)).toBeGreaterThan(0.85);
   });
