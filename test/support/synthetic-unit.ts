@@ -47,6 +47,11 @@ export interface SyntheticOptions {
   readonly stepS?: number;
   /** Speed range as shares of ratedRpm; default 0.25 to 1.1. */
   readonly speedRange?: readonly [number, number];
+  /**
+   * Speed of sample i as a share of ratedRpm, in place of the random walk
+   * (for logs that must sit exactly at a limit); `speedRange` is then unused.
+   */
+  readonly speedShare?: (i: number) => number;
   /** Load: kW at rated speed, following speed cubed, capped at ratedKw; 0 = open circuit. Default 0. */
   readonly ratedLoadKw?: number;
   /** Load power factor; default 0.95 lagging. */
@@ -108,6 +113,7 @@ export function syntheticSamples(options: SyntheticOptions = {}): TelemetrySampl
     if (share < lowShare) share = 2 * lowShare - share;
     if (share > highShare) share = 2 * highShare - share;
     share = Math.min(highShare, Math.max(lowShare, share));
+    if (options.speedShare !== undefined) share = options.speedShare(i);
     const rpm = nameplate.ratedRpm * share;
     const statorC = typeof options.statorC === 'function' ? options.statorC(i) : (options.statorC ?? 20);
     const ratedLoad = options.ratedLoadKw ?? 0;
@@ -147,4 +153,28 @@ export function syntheticSamples(options: SyntheticOptions = {}): TelemetrySampl
     samples.push(sample as unknown as TelemetrySample);
   }
   return samples;
+}
+
+/**
+ * Speed shares of `count` samples rising evenly from `from` to `to` (shares of ratedRpm).
+ * @example linearShares(3, 0.5, 0.6)(2) // 0.6
+ */
+export function linearShares(count: number, from: number, to: number): (i: number) => number {
+  return (i) => (count < 2 ? from : from + ((to - from) * i) / (count - 1));
+}
+
+/**
+ * EMF factor of phase b (a and c at 1) that gives a line-voltage unbalance of
+ * `pct` % by the maximum-deviation-from-mean definition, open circuit.
+ * Worked out here, not with lib/physics/unbalance: phase EMFs 1, k, 1 at
+ * 120° give |Vab| = |Vbc| = √(1 + k + k²) = s and |Vca| = √3 (law of
+ * cosines), so the largest deviation is Vca's, 2(√3 − s)/3, over the mean
+ * (2s + √3)/3: pct = 200(√3 − s)/(2s + √3), that is
+ * s = √3(200 − pct)/(200 + 2·pct) and k = (√(4s² − 3) − 1)/2.
+ * @example phaseFactorForUnbalancePct(2) // ≈ 0.9409
+ */
+export function phaseFactorForUnbalancePct(pct: number): number {
+  if (!(pct >= 0 && pct < 50)) throw new RangeError(`pct must be within 0..50, got ${pct}`);
+  const s = (Math.sqrt(3) * (200 - pct)) / (200 + 2 * pct);
+  return (Math.sqrt(4 * s * s - 3) - 1) / 2;
 }
