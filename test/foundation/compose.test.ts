@@ -30,9 +30,23 @@ describe('docker-compose.yml', () => {
   it('wires the services to the database and the broker by name', () => {
     for (const name of MILLRACE_SERVICES) {
       const env = compose.services[name]!.environment!;
-      expect(new URL(env.DATABASE_URL!).host).toBe('postgres:5432');
+      // As compose resolves it with POSTGRES_PASSWORD set.
+      const url = new URL(env.DATABASE_URL!.replace(/\$\{POSTGRES_PASSWORD:\?[^}]*\}/, 'secret'));
+      expect(url.host).toBe('postgres:5432');
+      expect(url.password).toBe('secret');
       expect(env.MQTT_URL).toBe('mqtt://mosquitto:1883');
     }
+  });
+
+  it('has no default database password: every use of POSTGRES_PASSWORD refuses when it is unset', () => {
+    const text = readFileSync(new URL('../../docker-compose.yml', import.meta.url), 'utf8');
+    const uses = [...text.matchAll(/\$\{POSTGRES_PASSWORD([^}]*)\}/g)].map((m) => m[1]!);
+    expect(uses.length).toBeGreaterThanOrEqual(2);
+    for (const use of uses) expect(use).toMatch(/^:\?set POSTGRES_PASSWORD/);
+    expect(compose.services.postgres?.environment?.POSTGRES_PASSWORD).toMatch(/^\$\{POSTGRES_PASSWORD:\?/);
+    // The password file the header suggests stays out of git and out of the image.
+    expect(readFileSync(new URL('../../.gitignore', import.meta.url), 'utf8')).toMatch(/^\.env$/m);
+    expect(readFileSync(new URL('../../.dockerignore', import.meta.url), 'utf8')).toMatch(/^\.env$/m);
   });
 
   it('gives Mosquitto the inline configuration, with persistence and no queue limit', () => {
