@@ -64,6 +64,8 @@ export const envSchema = z.object({
   RETENTION_DAYS: positiveInt('a number of days', 36_500).default(90),
   DIAGNOSIS_WINDOW_HOURS: positiveInt('a number of hours', 24 * 31).default(6),
   DIAGNOSIS_INTERVAL_S: positiveInt('a number of seconds', 86_400).default(60),
+  /** Live-update streams (app/api/live) open at once in one web process; more are answered 503. */
+  LIVE_MAX_STREAMS: positiveInt('a number of streams', 100_000).default(200),
 });
 
 export type Config = z.infer<typeof envSchema>;
