@@ -237,16 +237,21 @@ describe('demo fleet diagnosed', () => {
     expect(seen).toEqual(new Set(['demagnetisation', 'shorted-turn', 'speed-sensor-low']));
   });
 
-  it('runs the overspeed unit above its nameplate maxRpm in the samples it sends', () => {
+  it('runs the overspeed unit above its nameplate maxRpm in the samples it sends, and the diagnosis raises the alarm', () => {
+    const overspeedFindings = (result: DiagnosisResult) => result.findings.filter((f) => f.code === 'overspeed');
     for (const run of allRuns()) {
       const over = run.filter((r) => faultKinds(r.unit).has('overspeed'));
       expect(over.length).toBeGreaterThanOrEqual(1);
-      for (const { unit, samples } of over) {
+      for (const { unit, samples, result } of over) {
         const above = samples.filter((s) => s.rpm > unit.nameplate.maxRpm);
         expect(above.length, unit.nameplate.id).toBeGreaterThanOrEqual(5);
+        expect(overspeedFindings(result).map((f) => f.severity), unit.nameplate.id).toEqual(['alarm']);
+        // It does not change the verdict (contract, section 5).
+        expect(result.verdict, unit.nameplate.id).toBe('healthy');
       }
-      for (const { unit, samples } of run.filter((r) => !faultKinds(r.unit).has('overspeed'))) {
+      for (const { unit, samples, result } of run.filter((r) => !faultKinds(r.unit).has('overspeed'))) {
         expect(samples.filter((s) => s.rpm > unit.nameplate.maxRpm), unit.nameplate.id).toEqual([]);
+        expect(overspeedFindings(result), unit.nameplate.id).toEqual([]);
       }
     }
   });
