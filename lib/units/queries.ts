@@ -1,0 +1,461 @@
+/**
+ * Data access of the unit screen and the unit read API. Every function takes
+ * the viewer; a unit on a site the viewer may not see is undefined, like one
+ * that does not exist. Raw telemetry is read only within a bounded window (at
+ * most a day); longer ranges come from the rollups. Every series is
+ * downsampled on the server (lib/charts/downsample.ts).
+ */
+import { and, eq, sql } from 'drizzle-orm';
+import { rowsOf, type Db } from '../../db/client';
+import { sites, units, unitHealth, unitStatus, type SiteRow, type StoredFinding, type UnitRow } from '../../db/schema';
+import { canSeeSite, type Viewer } from '../auth/viewer';
+import { downsampleSeries, samplePoint, thinEvenly, DEFAULT_MAX_POINTS, type SeriesBucket, type SeriesPoint } from '../charts/downsample';
+import type { Nameplate } from '../contract/nameplate';
+import type { DiagnosisNameplate } from '../diagnosis/diagnose';
+import { resolveLimits, type ResolvedLimits } from '../diagnosis/limits';
+import { keTrend, type KeTrend } from '../diagnosis/trend';
+import { nameplateOfUnit } from '../fleet/queries';
+import { unitStateOf, type UnitStateView } from '../fleet/unit-state';
+import { emfChart, type EmfChart, type EmfSample } from './emf-points';
+
+const HOUR_MS = 3_600_000;
+const DAY_MS = 86_400_000;
+
+/** Where a range's series come from. */
+export type SeriesSource = 'raw' | 'rollup-10m' | 'rollup-daily';
+
+/** The ranges the unit screen offers: raw samples up to a day, 10-minute rollups to 30 days, daily rollups beyond. */
+export const SERIES_RANGES = {
+  '1h': { label: 'Last hour', ms: HOUR_MS, source: 'raw' },
+  '6h': { label: '6 hours', ms: 6 * HOUR_MS, source: 'raw' },
+  '1d': { label: '1 day', ms: DAY_MS, source: 'raw' },
+  '7d': { label: '7 days', ms: 7 * DAY_MS, source: 'rollup-10m' },
+  '30d': { label: '30 days', ms: 30 * DAY_MS, source: 'rollup-10m' },
+  '1y': { label: '1 year', ms: 365 * DAY_MS, source: 'rollup-daily' },
+} as const satisfies Record<string, { label: string; ms: number; source: SeriesSource }>;
+export type SeriesRange = keyof typeof SERIES_RANGES;
+export const SERIES_RANGE_KEYS = Object.keys(SERIES_RANGES) as SeriesRange[];
+
+/** Longest window of raw telemetry any screen reads. */
+export const MAX_RAW_WINDOW_MS = DAY_MS;
+
+/** The unit, its site, nameplate, latest status and health, as the unit screen shows them. */
+export interface UnitView {
+  readonly site: Pick<SiteRow, 'id' | 'name' | 'timezone'>;
+  readonly unit: UnitRow;
+  readonly nameplate: Nameplate;
+  readonly limits: ResolvedLimits;
+  readonly lastSampleMs: number | null;
+  readonly presence: 'online' | 'offline' | null;
+  readonly health: {
+    readonly diagnosedAtMs: number;
+    readonly windowFromMs: number;
+    readonly windowToMs: number;
+    readonly verdict: string;
+    readonly samplesUsed: number;
+    readonly keRatio: number | null;
+    readonly keRatioLow: number | null;
+    readonly keRatioHigh: number | null;
+    readonly unbalancePct: number | null;
+    readonly speedRatio: number | null;
+    readonly findings: StoredFinding[];
+    readonly detail: Record<string, unknown>;
+  } | undefined;
+  readonly state: UnitStateView;
+}
+
+/** The diagnosis fields of a nameplate. */
+function diagnosisNameplate(unit: UnitRow): DiagnosisNameplate {
+  return {
+    ratedRpm: unit.ratedRpm,
+    maxRpm: unit.maxRpm,
+    poles: unit.poles,
+    keVPerKrpm: unit.keVPerKrpm,
+    keRefC: unit.keRefC,
+    magnet: unit.magnet,
+    magnetTempCoeffPctPerC: unit.magnetTempCoeffPctPerC ?? undefined,
+    phaseOhm: unit.phaseOhm,
+    phaseMh: unit.phaseMh,
+    diagnosis: unit.diagnosis ?? undefined,
+  };
+}
+
+/** One unit of one site for the viewer, or undefined (no such unit, another site's, or not the viewer's). */
+export async function getUnitView({
+  db,
+  viewer,
+  siteId,
+  unitId,
+  nowMs = Date.now(),
+}: {
+  db: Db;
+  viewer: Viewer;
+  siteId: string;
+  unitId: string;
+  nowMs?: number;
+}): Promise<UnitView | undefined> {
+  if (!canSeeSite(viewer, siteId)) return undefined;
+  const [row] = await db
+    .select({ unit: units, site: { id: sites.id, name: sites.name, timezone: sites.timezone }, status: unitStatus, health: unitHealth })
+    .from(units)
+    .innerJoin(sites, eq(sites.id, units.siteId))
+    .leftJoin(unitStatus, eq(unitStatus.unitKey, units.key))
+    .leftJoin(unitHealth, eq(unitHealth.unitKey, units.key))
+    .where(and(eq(units.id, unitId), eq(units.siteId, siteId)))
+    .limit(1);
+  if (row === undefined) return undefined;
+  const lastSampleMs = row.status?.lastSampleTs?.getTime() ?? null;
+  const h = row.health;
+  const health =
+    h === null
+      ? undefined
+      : {
+          diagnosedAtMs: h.diagnosedAt.getTime(),
+          windowFromMs: h.windowFrom.getTime(),
+          windowToMs: h.windowTo.getTime(),
+          verdict: h.verdict,
+          samplesUsed: h.samplesUsed,
+          keRatio: h.keRatio,
+          keRatioLow: h.keRatioLow,
+          keRatioHigh: h.keRatioHigh,
+          unbalancePct: h.unbalancePct,
+          speedRatio: h.speedRatio,
+          findings: h.findings,
+          detail: h.detail,
+        };
+  return {
+    site: row.site,
+    unit: row.unit,
+    nameplate: nameplateOfUnit(row.unit),
+    limits: resolveLimits(row.unit.diagnosis ?? undefined),
+    lastSampleMs,
+    presence: row.status?.presence ?? null,
+    health,
+    state: unitStateOf({ health, lastSampleMs, nowMs }),
+  };
+}
+
+/** The check object of contract section 4 for the live diagnosis, plus when and over which samples. */
+export interface UnitHealthReport {
+  samplesUsed: number;
+  keRatio: number | null;
+  keRatioLow: number | null;
+  keRatioHigh: number | null;
+  unbalancePct: number | null;
+  speedRatio: number | null;
+  verdict: string;
+  findings: Array<{ code: string; severity: string; message: string }>;
+  diagnosedAt: string;
+  windowFrom: string;
+  windowTo: string;
+}
+
+/** `GET /api/v1/units/SITE/UNIT/health`: undefined when there is no such unit for the viewer or it was never diagnosed. */
+export async function getUnitHealthReport({ db, viewer, siteId, unitId }: { db: Db; viewer: Viewer; siteId: string; unitId: string }): Promise<UnitHealthReport | undefined> {
+  if (!canSeeSite(viewer, siteId)) return undefined;
+  const [row] = await db
+    .select({ health: unitHealth })
+    .from(units)
+    .innerJoin(unitHealth, eq(unitHealth.unitKey, units.key))
+    .where(and(eq(units.id, unitId), eq(units.siteId, siteId)))
+    .limit(1);
+  if (row === undefined) return undefined;
+  const h = row.health;
+  return {
+    samplesUsed: h.samplesUsed,
+    keRatio: h.keRatio,
+    keRatioLow: h.keRatioLow,
+    keRatioHigh: h.keRatioHigh,
+    unbalancePct: h.unbalancePct,
+    speedRatio: h.speedRatio,
+    verdict: h.verdict,
+    findings: h.findings.map((f) => ({ code: f.code, severity: f.severity, message: f.message })),
+    diagnosedAt: h.diagnosedAt.toISOString(),
+    windowFrom: h.windowFrom.toISOString(),
+    windowTo: h.windowTo.toISOString(),
+  };
+}
+
+interface RawRow {
+  ts_ms: number | string;
+  rpm: number | null;
+  hz: number | null;
+  vab: number | null;
+  vbc: number | null;
+  vca: number | null;
+  ia: number | null;
+  ib: number | null;
+  ic: number | null;
+  kw: number | null;
+  stator_c: number | null;
+  ambient_c: number | null;
+  wind_ms: number | null;
+  flow_m3s: number | null;
+}
+
+/** Raw samples of one unit in a window of at most a day, time order. */
+async function getRawWindow({ db, unitKey, fromMs, toMs }: { db: Db; unitKey: number; fromMs: number; toMs: number }): Promise<RawRow[]> {
+  if (toMs - fromMs > MAX_RAW_WINDOW_MS) throw new RangeError(`raw telemetry is read at most ${MAX_RAW_WINDOW_MS} ms at a time, got ${toMs - fromMs}`);
+  return rowsOf<RawRow>(
+    await db.execute(sql`
+      select (extract(epoch from ts) * 1000)::float8 as ts_ms, rpm, hz, vab, vbc, vca, ia, ib, ic, kw, stator_c, ambient_c, wind_ms, flow_m3s
+      from telemetry_samples
+      where unit_key = ${unitKey} and ts >= to_timestamp(${fromMs}::float8 / 1000.0) and ts <= to_timestamp(${toMs}::float8 / 1000.0)
+      order by ts`),
+  );
+}
+
+/** Fields of the unit screen's time charts. Rollups keep means of the three lines and phases, not each one. */
+export const SERIES_FIELDS = {
+  rpm: { label: 'Speed', unit: 'rpm' },
+  hz: { label: 'Frequency', unit: 'Hz' },
+  vab: { label: 'Line voltage A–B', unit: 'V' },
+  vbc: { label: 'Line voltage B–C', unit: 'V' },
+  vca: { label: 'Line voltage C–A', unit: 'V' },
+  vll: { label: 'Line voltage, mean of lines', unit: 'V' },
+  ia: { label: 'Current phase A', unit: 'A' },
+  ib: { label: 'Current phase B', unit: 'A' },
+  ic: { label: 'Current phase C', unit: 'A' },
+  amps: { label: 'Current, mean of phases', unit: 'A' },
+  kw: { label: 'Power', unit: 'kW' },
+  statorC: { label: 'Stator temperature', unit: '°C' },
+  ambientC: { label: 'Ambient temperature', unit: '°C' },
+  resource: { label: 'Wind speed or water flow', unit: '' },
+} as const;
+export type SeriesField = keyof typeof SERIES_FIELDS;
+
+/** The time series of one unit over a range, downsampled. */
+export interface UnitSeries {
+  readonly range: SeriesRange;
+  readonly source: SeriesSource;
+  readonly fromMs: number;
+  readonly toMs: number;
+  /** Samples (raw) or rollup rows read. */
+  readonly rowsRead: number;
+  /** Each field that has data: buckets with min, max and mean. */
+  readonly series: Partial<Record<SeriesField, SeriesBucket[]>>;
+}
+
+interface RollupRow {
+  t: number | string;
+  samples: number;
+  rpm_min: number | null;
+  rpm_max: number | null;
+  rpm_sum: number | null;
+  vll_min: number | null;
+  vll_max: number | null;
+  vll_sum: number | null;
+  amps_min: number | null;
+  amps_max: number | null;
+  amps_sum: number | null;
+  amps_count: number;
+  kw_min: number | null;
+  kw_max: number | null;
+  kw_sum: number | null;
+  kw_count: number;
+  stator_c_min: number | null;
+  stator_c_max: number | null;
+  stator_c_sum: number | null;
+  stator_c_count: number;
+  resource_min: number | null;
+  resource_max: number | null;
+  resource_sum: number | null;
+  resource_count: number;
+}
+
+/**
+ * Speed, frequency, line voltages, currents, power and temperatures of one
+ * unit over `range` up to `nowMs`: raw samples up to a day, 10-minute rollups
+ * up to 30 days, daily rollups beyond; at most `maxPoints` buckets a series.
+ */
+export async function getUnitSeries({
+  db,
+  viewer,
+  siteId,
+  unitId,
+  range,
+  nowMs = Date.now(),
+  maxPoints = DEFAULT_MAX_POINTS,
+}: {
+  db: Db;
+  viewer: Viewer;
+  siteId: string;
+  unitId: string;
+  range: SeriesRange;
+  nowMs?: number;
+  maxPoints?: number;
+}): Promise<UnitSeries | undefined> {
+  const spec = SERIES_RANGES[range];
+  if (spec === undefined) throw new RangeError(`range must be one of ${SERIES_RANGE_KEYS.join(', ')}, got ${String(range)}`);
+  const unitKey = await getVisibleUnitKey({ db, viewer, siteId, unitId });
+  if (unitKey === undefined) return undefined;
+  const fromMs = nowMs - spec.ms;
+  const toMs = nowMs;
+  const series: UnitSeries['series'] = {};
+  const put = (field: SeriesField, points: SeriesPoint[]) => {
+    if (points.length > 0) series[field] = downsampleSeries(points, { fromMs, toMs, maxPoints });
+  };
+  if (spec.source === 'raw') {
+    const rows = await getRawWindow({ db, unitKey, fromMs, toMs });
+    const fields: Array<[SeriesField, keyof RawRow]> = [
+      ['rpm', 'rpm'],
+      ['hz', 'hz'],
+      ['vab', 'vab'],
+      ['vbc', 'vbc'],
+      ['vca', 'vca'],
+      ['ia', 'ia'],
+      ['ib', 'ib'],
+      ['ic', 'ic'],
+      ['kw', 'kw'],
+      ['statorC', 'stator_c'],
+      ['ambientC', 'ambient_c'],
+    ];
+    for (const [field, column] of fields) {
+      const points: SeriesPoint[] = [];
+      for (const r of rows) {
+        const p = samplePoint(Number(r.ts_ms), r[column] === null ? null : Number(r[column]));
+        if (p) points.push(p);
+      }
+      put(field, points);
+    }
+    const resource: SeriesPoint[] = [];
+    for (const r of rows) {
+      const p = samplePoint(Number(r.ts_ms), r.wind_ms ?? r.flow_m3s);
+      if (p) resource.push(p);
+    }
+    put('resource', resource);
+    return { range, source: 'raw', fromMs, toMs, rowsRead: rows.length, series };
+  }
+  const table = spec.source === 'rollup-10m' ? sql`telemetry_rollups_10m` : sql`telemetry_rollups_daily`;
+  const rows = rowsOf<RollupRow>(
+    await db.execute(sql`
+      select (extract(epoch from bucket_start) * 1000)::float8 as t, samples,
+             rpm_min, rpm_max, rpm_sum, vll_min, vll_max, vll_sum,
+             amps_min, amps_max, amps_sum, amps_count, kw_min, kw_max, kw_sum, kw_count,
+             stator_c_min, stator_c_max, stator_c_sum, stator_c_count,
+             resource_min, resource_max, resource_sum, resource_count
+      from ${table}
+      where unit_key = ${unitKey} and bucket_start >= to_timestamp(${fromMs}::float8 / 1000.0) and bucket_start <= to_timestamp(${toMs}::float8 / 1000.0)
+      order by bucket_start`),
+  );
+  const rollupPoints = (min: keyof RollupRow, max: keyof RollupRow, total: keyof RollupRow, count: keyof RollupRow | 'samples') => {
+    const points: SeriesPoint[] = [];
+    for (const r of rows) {
+      const n = Number(r[count]);
+      if (!(n > 0) || r[min] === null || r[max] === null || r[total] === null) continue;
+      points.push({ t: Number(r.t), min: Number(r[min]), max: Number(r[max]), sum: Number(r[total]), count: n });
+    }
+    return points;
+  };
+  put('rpm', rollupPoints('rpm_min', 'rpm_max', 'rpm_sum', 'samples'));
+  put('vll', rollupPoints('vll_min', 'vll_max', 'vll_sum', 'samples'));
+  put('amps', rollupPoints('amps_min', 'amps_max', 'amps_sum', 'amps_count'));
+  put('kw', rollupPoints('kw_min', 'kw_max', 'kw_sum', 'kw_count'));
+  put('statorC', rollupPoints('stator_c_min', 'stator_c_max', 'stator_c_sum', 'stator_c_count'));
+  put('resource', rollupPoints('resource_min', 'resource_max', 'resource_sum', 'resource_count'));
+  return { range, source: spec.source, fromMs, toMs, rowsRead: rows.length, series };
+}
+
+/** The unit's key when the viewer may see it on that site. */
+async function getVisibleUnitKey({ db, viewer, siteId, unitId }: { db: Db; viewer: Viewer; siteId: string; unitId: string }): Promise<number | undefined> {
+  if (!canSeeSite(viewer, siteId)) return undefined;
+  const [row] = await db
+    .select({ key: units.key })
+    .from(units)
+    .where(and(eq(units.id, unitId), eq(units.siteId, siteId)))
+    .limit(1);
+  return row?.key;
+}
+
+/** Points of the voltage-against-speed chart. */
+export const MAX_SCATTER_POINTS = 1500;
+
+/** The voltage-against-speed evidence and the window it was drawn from. */
+export interface UnitEmfView extends EmfChart {
+  readonly fromMs: number;
+  readonly toMs: number;
+  /** Whether the window is the latest diagnosis's (else the last hours). */
+  readonly diagnosisWindow: boolean;
+  readonly samplesRead: number;
+}
+
+/**
+ * Terminal voltage and corrected EMF against speed over the latest diagnosis's
+ * window (at most a day; the last 6 hours when never diagnosed), thinned to
+ * {@link MAX_SCATTER_POINTS}; speed from the frequency when the diagnosis judged the sensor faulty.
+ */
+export async function getUnitEmfView({ db, view, nowMs = Date.now() }: { db: Db; view: UnitView; nowMs?: number }): Promise<UnitEmfView> {
+  const h = view.health;
+  const toMs = h?.windowToMs ?? nowMs;
+  const fromMs = Math.max(h?.windowFromMs ?? toMs - view.limits.windowHours * HOUR_MS, toMs - MAX_RAW_WINDOW_MS);
+  const rows = await getRawWindow({ db, unitKey: view.unit.key, fromMs, toMs });
+  const n = (v: number | null) => (v === null ? null : Number(v));
+  const samples: EmfSample[] = rows.map((r) => ({
+    ts: Number(r.ts_ms),
+    rpm: n(r.rpm),
+    hz: n(r.hz),
+    vab: n(r.vab),
+    vbc: n(r.vbc),
+    vca: n(r.vca),
+    ia: n(r.ia),
+    ib: n(r.ib),
+    ic: n(r.ic),
+    kw: n(r.kw),
+    statorC: n(r.stator_c),
+    ambientC: n(r.ambient_c),
+  }));
+  const speedFrom = h?.detail?.speedSource === 'hz' ? 'hz' : 'rpm';
+  const chart = emfChart({ nameplate: diagnosisNameplate(view.unit), samples: thinEvenly(samples, Math.max(2, MAX_SCATTER_POINTS)), speedFrom });
+  return { ...chart, fromMs, toMs, diagnosisWindow: h !== undefined, samplesRead: rows.length };
+}
+
+/** One day of the Ke history. */
+export interface KeDay {
+  /** Noon UTC of the day, epoch ms. */
+  readonly t: number;
+  /** Median corrected Ke ratio of the day's diagnoses. */
+  readonly ke: number;
+  /** Lowest lower and highest upper bound of the day's 95 % intervals. */
+  readonly low: number | null;
+  readonly high: number | null;
+  readonly diagnoses: number;
+}
+
+/** Days of Ke history the unit screen shows (the trend looks back as far). */
+export const KE_HISTORY_DAYS = 180;
+
+/** The corrected Ke ratio per day over the last {@link KE_HISTORY_DAYS} and its trend (lib/diagnosis/trend.ts). */
+export async function getUnitKeHistory({
+  db,
+  view,
+  nowMs = Date.now(),
+}: {
+  db: Db;
+  view: UnitView;
+  nowMs?: number;
+}): Promise<{ days: KeDay[]; trend: KeTrend; fromMs: number }> {
+  const fromMs = nowMs - KE_HISTORY_DAYS * DAY_MS;
+  const rows = rowsOf<{ day: number | string; ke: number | string; low: number | null; high: number | null; n: number | string }>(
+    await db.execute(sql`
+      select floor(extract(epoch from diagnosed_at) / 86400)::float8 as day,
+             percentile_cont(0.5) within group (order by ke_ratio) as ke,
+             min(ke_ratio_low) as low, max(ke_ratio_high) as high, count(*) as n
+      from unit_health_history
+      where unit_key = ${view.unit.key} and diagnosed_at >= to_timestamp(${fromMs}::float8 / 1000.0)
+        and ke_ratio is not null and verdict <> 'insufficient-data'
+      group by 1
+      order by 1`),
+  );
+  const days = rows.map((r) => ({
+    t: (Number(r.day) + 0.5) * DAY_MS,
+    ke: Number(r.ke),
+    low: r.low === null ? null : Number(r.low),
+    high: r.high === null ? null : Number(r.high),
+    diagnoses: Number(r.n),
+  }));
+  const trend = keTrend(
+    days.map((d) => ({ tsMs: d.t, keRatio: d.ke })),
+    { thresholdRatio: view.limits.keAlarmRatio },
+  );
+  return { days, trend, fromMs };
+}
