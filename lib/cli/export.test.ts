@@ -135,19 +135,36 @@ describe(`millrace export (${created ? 'PostgreSQL' : 'embedded PGlite'})`, () =
     expect((await runCli(['--unit', 'no-slash'])).code).toBe(2);
   });
 
-  it('gives a log that `millrace energy` reads', async () => {
-    const { out } = await runCli(['--unit', `${unit.siteId}/${unit.id}`]);
-    const log = join(dir, 'energy.csv');
-    writeFileSync(log, out);
+  it('gives a log that `millrace energy` reads as it reads the samples written straight to a log', async () => {
     const plate = join(dir, 'unit.json');
     writeFileSync(plate, JSON.stringify(unit));
-    let text = '';
-    const stdout = new Writable({ write: (chunk, _enc, cb) => ((text += chunk.toString()), cb()) });
-    const stderr = new Writable({ write: (_c, _e, cb) => cb() });
-    expect(await main(['energy', '--nameplate', plate, '--log', log, '--json'], { stdout, stderr })).toBe(0);
-    const report = JSON.parse(text) as { samplesUsed: number; months: unknown[] };
-    expect(report.months.length).toBeGreaterThan(0);
-    expect(report.samplesUsed).toBeGreaterThan(0);
+    const energyOf = async (log: string) => {
+      let text = '';
+      const stdout = new Writable({ write: (chunk, _enc, cb) => ((text += chunk.toString()), cb()) });
+      const stderr = new Writable({ write: (_c, _e, cb) => cb() });
+      expect(await main(['energy', '--nameplate', plate, '--log', log, '--json'], { stdout, stderr })).toBe(0);
+      return JSON.parse(text) as { samplesUsed: number; months: Array<Record<string, unknown>> };
+    };
+    const { out } = await runCli(['--unit', `${unit.siteId}/${unit.id}`]);
+    const exported = join(dir, 'energy.csv');
+    writeFileSync(exported, out);
+    // The same samples written by hand, at the float4 precision they are stored with.
+    const fields = ['rpm', 'hz', 'vab', 'vbc', 'kw', 'statorC', 'windMs'] as const;
+    const cell = (v: number | undefined) => (v === undefined ? '' : String(Math.fround(v)));
+    const direct = join(dir, 'direct.csv');
+    const rows = Array.from({ length: count }, (_, i) => sampleAt(i)).map((s) => [new Date(s.ts).toISOString(), ...fields.map((k) => cell(s[k]))].join(','));
+    writeFileSync(direct, `${['ts', ...fields].join(',')}\n${rows.join('\n')}\n`);
+    const got = await energyOf(exported);
+    const want = await energyOf(direct);
+    expect(want.months.length).toBeGreaterThan(0);
+    expect(got.samplesUsed).toBe(want.samplesUsed);
+    expect(got.months.map((m) => m.month)).toEqual(want.months.map((m) => m.month));
+    got.months.forEach((m, k) => {
+      for (const [key, value] of Object.entries(want.months[k]!)) {
+        if (typeof value === 'number') expect(m[key], `${String(m.month)} ${key}`).toBeCloseTo(value, 6);
+        else expect(m[key], `${String(m.month)} ${key}`).toEqual(value);
+      }
+    });
   });
 });
 

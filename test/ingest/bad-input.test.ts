@@ -256,9 +256,14 @@ describe(`bad input lands in quarantine with its reason (${backendDescription()}
       const row = rows[k]!;
       expect(row.reason).toMatch(expected.reason);
       if (expected.sampleIndex !== undefined) expect(row.sample_index).toBe(expected.sampleIndex);
-      // The payload is kept, bounded, and its full size recorded.
+      // The payload is kept, bounded, and its full size recorded: the whole message's bytes, or
+      // for a sample refused out of an array, the bytes of that sample as JSON.
       expect(row.payload.length).toBeLessThanOrEqual(4096 + 40);
-      expect(Number(row.payload_bytes)).toBeGreaterThanOrEqual(0);
+      const bytes =
+        row.sample_index === null
+          ? Buffer.byteLength(c.payload)
+          : Buffer.byteLength(JSON.stringify((JSON.parse(String(c.payload)) as unknown[])[row.sample_index]));
+      expect(Number(row.payload_bytes)).toBe(bytes);
     });
     const [stored] = await queryRows<{ n: number }>(
       db.handle,

@@ -92,7 +92,7 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
     const messages: Outgoing[] = [];
     for (let k = 0; perUnit.some((list) => k < list.length); k++) for (const list of perUnit) if (k < list.length) messages.push(list[k]!);
     messages.push({ topic: `millrace/${windSite}/${fleet.units[0]!.id}/presence`, payload: 'online', retain: true });
-    messages.push({ topic: `millrace/${hydroSite}/${fleet.units[3]!.id}/presence`, payload: 'offline', retain: true });
+    messages.push({ topic: `millrace/${hydroSite}/${fleet.units[3]!.id}/presence`, payload: 'online', retain: true });
     await publisher.publishAll(messages, { window: 50 });
     await publisher.close();
     let have = 0;
@@ -202,8 +202,22 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
     );
     const byId = new Map(rows.map((r) => [r.id, r]));
     expect(byId.get(fleet.units[0]!.id)?.presence).toBe('online');
-    expect(byId.get(fleet.units[3]!.id)?.presence).toBe('offline');
-    expect(byId.get(fleet.units[3]!.id)?.presence_at).not.toBeNull();
+    // The hydro unit was online while it sent; now it stops, and its state must change.
+    const hydro = fleet.units[3]!.id;
+    expect(byId.get(hydro)?.presence).toBe('online');
+    const onlineAt = byId.get(hydro)!.presence_at!.getTime();
+    const updates = ingester.state().counters.presenceUpdates;
+    const publisher = await openPublisher(broker.url, { mqtt5: broker.mqtt5 });
+    await publisher.publishAll([{ topic: `millrace/${hydroSite}/${hydro}/presence`, payload: 'offline', retain: true }]);
+    await publisher.close();
+    await waitFor('offline presence committed', () => ingester.state().counters.presenceUpdates > updates);
+    const [after] = await queryRows<{ presence: string | null; presence_at: Date | null }>(
+      db.handle,
+      'select s.presence::text as presence, s.presence_at from unit_status s join units u on u.key = s.unit_key where u.id = $1',
+      [hydro],
+    );
+    expect(after!.presence).toBe('offline');
+    expect(after!.presence_at!.getTime()).toBeGreaterThanOrEqual(onlineAt);
     fleet.units.forEach((unit, u) => {
       const s = series(u);
       expect(Number(byId.get(unit.id)?.last)).toBe(s[s.length - 1]!.ts);
