@@ -7,6 +7,7 @@
  */
 import { createReadStream, statSync } from 'node:fs';
 import { AppError } from '../errors/app-error';
+import { describeFileError } from './file-errors';
 import {
   REQUIRED_TELEMETRY_FIELDS,
   TELEMETRY_FIELDS,
@@ -77,7 +78,7 @@ export async function readCsvLog(path: string, handlers: CsvLogHandlers): Promis
   try {
     totalBytes = statSync(path).size;
   } catch (cause) {
-    throw new AppError('bad-input', 'cli', `${path}: cannot read the log (${(cause as NodeJS.ErrnoException).code ?? 'error'})`, { cause });
+    throw new AppError('bad-input', 'cli', describeFileError(cause, 'log', path), { cause });
   }
   const stream = createReadStream(path, { encoding: 'utf8', highWaterMark: 1 << 20 });
   let header: string[] | undefined;
@@ -149,8 +150,7 @@ export async function readCsvLog(path: string, handlers: CsvLogHandlers): Promis
   } catch (error) {
     stream.destroy();
     if (error instanceof AppError) throw error;
-    const code = (error as NodeJS.ErrnoException).code;
-    throw new AppError('bad-input', 'cli', `${path}: cannot read the log (${code ?? String(error)})`, { cause: error });
+    throw new AppError('bad-input', 'cli', describeFileError(error, 'log', path), { cause: error });
   }
   if (header === undefined) {
     throw new AppError('bad-input', 'cli', `${path}: line 1: the log is empty, expected a header of telemetry field names`);

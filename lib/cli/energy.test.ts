@@ -307,7 +307,7 @@ describe('millrace energy, runs that cannot start (exit 2)', () => {
     const missing = join(dir, 'nope.csv');
     const r = await energy(['--nameplate', windPlatePath, '--log', missing]);
     expect(r.status).toBe(2);
-    expect(r.err).toBe(`millrace energy: ${missing}: cannot read the log (ENOENT)\n`);
+    expect(r.err).toBe(`millrace energy: cannot read log ${missing}: no such file\n`);
   });
 
   it('names a missing required column', async () => {

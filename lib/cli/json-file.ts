@@ -7,7 +7,8 @@ import { readFile } from 'node:fs/promises';
 import type { z } from 'zod';
 import { AppError } from '../errors/app-error';
 import { formatIssues } from '../contract/telemetry';
-import { nameplateSchema, type Nameplate } from '../contract/nameplate';
+import { fleetSchema, nameplateSchema, type Nameplate } from '../contract/nameplate';
+import { describeFileError } from './file-errors';
 
 /** Result of reading a file: the value, or every problem as "path: reason". */
 export type JsonFileResult<T> = { ok: true; value: T } | { ok: false; problems: string[] };
@@ -16,13 +17,23 @@ function lineOf(text: string, position: number): number {
   return text.slice(0, position).split('\n').length;
 }
 
-/** Reads and validates `path`; I/O and syntax errors throw AppError naming the file. */
-export async function readJsonFile<S extends z.ZodType>(path: string, schema: S): Promise<JsonFileResult<z.output<S>>> {
+/** The role of a file read with a contract schema, as its errors name it. */
+const ROLE = new Map<z.ZodType, string>([
+  [nameplateSchema, 'nameplate file'],
+  [fleetSchema, 'fleet file'],
+]);
+
+/**
+ * Reads and validates `path`; I/O and syntax errors throw AppError naming the
+ * file, in words ("cannot read nameplate file x.json: no such file"). `what`
+ * names the file's role (by default from the schema).
+ */
+export async function readJsonFile<S extends z.ZodType>(path: string, schema: S, what = ROLE.get(schema) ?? 'file'): Promise<JsonFileResult<z.output<S>>> {
   let text: string;
   try {
     text = await readFile(path, 'utf8');
   } catch (cause) {
-    throw new AppError('bad-input', 'cli', `${path}: cannot read the file (${(cause as NodeJS.ErrnoException).code ?? 'error'})`, { cause });
+    throw new AppError('bad-input', 'cli', describeFileError(cause, what, path), { cause });
   }
   let raw: unknown;
   try {

@@ -3,81 +3,69 @@
  * module and exports `run(args, io): Promise<number>` returning the exit status.
  */
 import { AppError } from '../errors/app-error';
+import { describeFileError, isFileError } from './file-errors';
+import { COMMAND_HELP, commandHelpText, helpText } from './help';
+
+export { helpText } from './help';
 
 export interface CliIo {
   stdout: NodeJS.WritableStream;
   stderr: NodeJS.WritableStream & { isTTY?: boolean };
 }
 
-type Command = {
-  usage: string;
-  summary: string;
-  load: () => Promise<{ run(args: string[], io: CliIo): Promise<number> }>;
+type CommandModule = { run(args: string[], io: CliIo): Promise<number> };
+
+/** The commands; their options and help are in lib/cli/help.ts (COMMAND_HELP). */
+export const COMMANDS: Record<string, () => Promise<CommandModule>> = {
+  check: () => import('./check'),
+  energy: () => import('./energy'),
+  units: () => import('./units'),
+  export: () => import('./export'),
 };
 
-const COMMANDS: Record<string, Command> = {
-  check: {
-    usage: 'millrace check --nameplate UNIT.json --log LOG.csv [--json]',
-    summary: "diagnose a unit's log against its nameplate (Ke, unbalance, speed sensor)",
-    load: () => import('./check'),
-  },
-  energy: {
-    usage: 'millrace energy --nameplate UNIT.json --log LOG.csv [--tz ZONE] [--json]',
-    summary: 'energy yield of a log per calendar month',
-    load: () => import('./energy'),
-  },
-  units: {
-    usage: 'millrace units import FLEET.json',
-    summary: 'register or update sites and units from a fleet file',
-    load: () => import('./units'),
-  },
-  export: {
-    usage: 'millrace export --unit SITE/UNIT [--from TIME] [--to TIME]',
-    summary: "write a unit's stored samples as a CSV log on standard output",
-    load: () => import('./export'),
-  },
-};
-
-/** The help text of `millrace --help`. */
-export function helpText(): string {
-  const width = Math.max(...Object.values(COMMANDS).map((c) => c.usage.length));
-  const lines = Object.values(COMMANDS).map((c) => `  ${c.usage.padEnd(width)}  ${c.summary}`);
-  return [
-    'millrace — health and energy of small permanent-magnet wind and hydro generators',
-    '',
-    'usage: npx millrace <command> [options]',
-    '',
-    'commands:',
-    ...lines,
-    '',
-    'Exit status: 0 when the command ran, 2 when it could not (bad file, column or option).',
-    'Database commands use DATABASE_URL when set, else the embedded database in DATA_DIR (./data).',
-    '',
-  ].join('\n');
+/** The help of `millrace <name> --help` (every sub-command of `units`, say); undefined for an unknown name. */
+export function helpOf(name: string): string | undefined {
+  const entries = Object.values(COMMAND_HELP).filter((c) => c.name === name || c.name.startsWith(`${name} `));
+  return entries.length === 0 ? undefined : entries.map(commandHelpText).join('\n');
 }
 
 /** Runs one command line; returns the exit status. */
 export async function main(args: readonly string[], io: CliIo = { stdout: process.stdout, stderr: process.stderr }): Promise<number> {
   const [name, ...rest] = args;
-  if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
-    io.stdout.write(helpText());
-    return name === undefined ? 2 : 0;
+  if (name === undefined) {
+    io.stderr.write(helpText());
+    return 2;
   }
-  const command = COMMANDS[name];
-  if (command === undefined) {
+  if (name === '--help' || name === '-h' || name === 'help') {
+    const about = rest[0] === undefined ? undefined : helpOf(rest[0]);
+    if (rest[0] !== undefined && about === undefined) {
+      io.stderr.write(`millrace: unknown command "${rest[0]}"\n\n${helpText()}`);
+      return 2;
+    }
+    io.stdout.write(about ?? helpText());
+    return 0;
+  }
+  const load = COMMANDS[name];
+  if (load === undefined) {
     io.stderr.write(`millrace: unknown command "${name}"\n\n${helpText()}`);
     return 2;
   }
   if (rest.includes('--help') || rest.includes('-h')) {
-    io.stdout.write(`usage: npx ${command.usage}\n`);
+    io.stdout.write(helpOf(name)!);
     return 0;
   }
   try {
-    const loaded = await command.load();
+    const loaded = await load();
     return await loaded.run(rest, io);
   } catch (error) {
     if (error instanceof AppError && error.expose) {
-      io.stderr.write(`millrace ${name}: ${error.message}\n`);
+      const hint = error.code === 'bad-input:cli-usage' ? `\n(npx millrace ${name} --help lists its options)` : '';
+      io.stderr.write(`millrace ${name}: ${error.message}${hint}\n`);
+      return 2;
+    }
+    // A file error that no command put in words (EACCES on a folder, ENOSPC ...): still in words.
+    if (isFileError(error)) {
+      io.stderr.write(`millrace ${name}: ${describeFileError(error, 'file')}\n`);
       return 2;
     }
     io.stderr.write(`millrace ${name}: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`);

@@ -150,6 +150,6 @@ describe('npx millrace units import', () => {
     const err = capture();
     const code = await main(['units', 'import', join(dir, 'absent.json')], { stdout: out.stream, stderr: err.stream });
     expect(code).toBe(2);
-    expect(err.text()).toContain('absent.json: cannot read the file (ENOENT)');
+    expect(err.text()).toMatch(/cannot read fleet file \S*absent\.json: no such file\n$/);
   });
 });

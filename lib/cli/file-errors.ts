@@ -1,0 +1,56 @@
+/**
+ * File errors of the command line in words: "cannot read nameplate file
+ * x.json: no such file", never a bare ENOENT, EACCES or EISDIR.
+ */
+
+/** The system's error codes a user meets with files, in words. */
+const WORDS: Record<string, string> = {
+  ENOENT: 'no such file',
+  EACCES: 'permission denied',
+  EPERM: 'operation not permitted',
+  EISDIR: 'it is a folder, not a file',
+  ENOTDIR: 'a part of the path is not a folder',
+  ELOOP: 'too many symbolic links in the path',
+  ENAMETOOLONG: 'the name is too long',
+  EMFILE: 'too many files open in this process',
+  ENFILE: 'too many files open on this machine',
+  ENOSPC: 'no space left on the device',
+  EDQUOT: 'disk quota exceeded',
+  EROFS: 'the file system is read-only',
+  EBUSY: 'the file is busy',
+  EIO: 'an input/output error of the device',
+  EFBIG: 'the file is too large',
+  ETXTBSY: 'the file is in use',
+  EEXIST: 'it exists already',
+  ENXIO: 'no such device',
+  ENODEV: 'no such device',
+};
+
+/** A Node.js system error about a file (it carries a code such as ENOENT). */
+export function isFileError(error: unknown): error is NodeJS.ErrnoException {
+  if (!(error instanceof Error)) return false;
+  const e = error as NodeJS.ErrnoException;
+  return typeof e.code === 'string' && /^E[A-Z0-9]+$/.test(e.code) && (e.path !== undefined || e.syscall !== undefined);
+}
+
+/** What went wrong, in words ("no such file"); an unlisted code gives the system's own words, without the code. */
+export function fileErrorWords(error: unknown): string {
+  const e = error as NodeJS.ErrnoException;
+  if (typeof e?.code === 'string' && WORDS[e.code]) return WORDS[e.code]!;
+  const message = error instanceof Error ? error.message : String(error);
+  // "EXDEV: cross-device link not permitted, rename 'a' -> 'b'" → "cross-device link not permitted"
+  return message.replace(/^E[A-Z0-9]+:\s*/, '').replace(/,\s*\w+\s+'.*$/s, '') || 'an error of the system';
+}
+
+const WRITING = new Set(['write', 'mkdir', 'rename', 'unlink', 'rmdir', 'copyfile', 'symlink', 'link', 'chmod', 'chown', 'truncate', 'ftruncate', 'utime', 'futime', 'fsync']);
+
+/**
+ * "cannot read nameplate file x.json: no such file". `what` names the file's
+ * role ("nameplate file", "log"); `path` defaults to the error's own.
+ */
+export function describeFileError(error: unknown, what: string, path?: string): string {
+  const e = error as NodeJS.ErrnoException;
+  const verb = e?.syscall && WRITING.has(e.syscall) ? 'write' : 'read';
+  const where = path ?? e?.path ?? '';
+  return `cannot ${verb} ${what}${where ? ` ${where}` : ''}: ${fileErrorWords(error)}`;
+}
