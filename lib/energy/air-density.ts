@@ -14,7 +14,7 @@ export const REFERENCE_AIR_DENSITY_KG_M3 = 1.225;
 
 /**
  * Wind speed normalised to `referenceKgM3`, m/s, from the measured speed (m/s) and air density (kg/m³).
- * @example normaliseWindSpeedMs(8, 1.0) // 7.4764: thin air carries less power at the same speed
+ * @example normaliseWindSpeedMs(8, 1.0) // 7.4767 (8 · (1.0 / 1.225)^(1/3) = 7.47672): thin air carries less power at the same speed
  */
 export function normaliseWindSpeedMs(
   windMs: number,

@@ -26,7 +26,9 @@ describe('monthlyEnergy', () => {
   });
 
   it('splits an interval across the month edge of the zone asked for', () => {
-    // 22:55 to 23:05 UTC on 31 March 2026: Oslo (+02:00) passes midnight at 22:00 UTC, so all is April there.
+    // 21:55 to 22:05 UTC on 31 March 2026 (23:55 to 00:05 in Oslo, on summer time +02:00 since 29 March):
+    // Oslo's midnight falls at 22:00 UTC, so 5 minutes at 12 kW (1 kWh) go to March and 5 to April there;
+    // in UTC all 10 minutes are March's.
     const list = [
       { ts: Date.UTC(2026, 2, 31, 21, 55), kw: 12 },
       { ts: Date.UTC(2026, 2, 31, 22, 5), kw: 12 },
@@ -34,6 +36,7 @@ describe('monthlyEnergy', () => {
     const { samples } = energySamplesFrom(hydro, list);
     const utc = monthlyEnergy(samples, { ratedKw: 50 });
     expect(utc.map((m) => m.month)).toEqual(['2026-03']);
+    expect(utc[0]?.kwh).toBeCloseTo(2, 12);
     const oslo = monthlyEnergy(samples, { ratedKw: 50, timeZone: 'Europe/Oslo' });
     expect(oslo.map((m) => m.month)).toEqual(['2026-03', '2026-04']);
     expect(oslo[0]?.kwh).toBeCloseTo(1, 12);

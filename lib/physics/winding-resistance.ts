@@ -4,11 +4,15 @@
 
 /**
  * Temperature coefficient of resistance of annealed copper at 20 °C, per °C:
- * 0.00393 (IEC 60028, international standard of resistance for copper).
+ * 0.00393, from the International Annealed Copper Standard (IEC 60028, 1925,
+ * International standard of resistance for copper; from memory). Its inferred
+ * zero, 1/0.00393 − 20 = 234.5 °C, is the copper constant of the usual
+ * winding-resistance temperature correction (IEEE Std 118 and 115; IEC 60034-1
+ * rounds it to 235; from memory).
  */
 export const COPPER_TEMP_COEFF_PER_C = 0.00393;
 
-/** Reference temperature of nameplate winding resistance, °C (IEC 60028). */
+/** Reference temperature of nameplate winding resistance, °C: the 20 °C at which IEC 60028 states copper's coefficient. */
 export const COPPER_REF_C = 20;
 
 /**

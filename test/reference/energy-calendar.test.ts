@@ -14,8 +14,9 @@ const H = 3_600_000;
 
 describe('month lengths across daylight-saving changes', () => {
   it('Europe: 743 h in March, 745 h in October', () => {
-    // Directive 2000/84/EC, articles 2 and 3: summer time begins at 01:00 UTC on the last Sunday
-    // in March and ends at 01:00 UTC on the last Sunday in October (29 March and 25 October 2026).
+    // Directive 2000/84/EC, articles 2 and 3 (from memory): summer time begins at 01:00 UTC on the last
+    // Sunday in March and ends at 01:00 UTC on the last Sunday in October (29 March and 25 October 2026).
+    // Norway follows the directive through the EEA agreement (from memory); the zone database agrees.
     for (const zone of ['Europe/Oslo', 'Europe/Lisbon', 'Europe/Helsinki']) {
       expect(monthHours(2026, 3, zone)).toBe(743);
       expect(monthHours(2026, 10, zone)).toBe(745);
@@ -27,7 +28,7 @@ describe('month lengths across daylight-saving changes', () => {
   });
 
   it('United States: 743 h in March, 721 h in November', () => {
-    // Energy Policy Act of 2005, section 110 (15 U.S.C. 260a): daylight time from 2:00 local on the
+    // Energy Policy Act of 2005, section 110 (15 U.S.C. 260a; from memory): daylight time from 2:00 local on the
     // second Sunday of March to 2:00 local on the first Sunday of November (8 March, 1 November 2026).
     expect(monthHours(2026, 3, 'America/New_York')).toBe(743);
     expect(monthHours(2026, 11, 'America/New_York')).toBe(721);
@@ -51,13 +52,15 @@ describe('month lengths across daylight-saving changes', () => {
   });
 
   it('UTC months have whole days only', () => {
-    // Gregorian calendar: 28, 29 (leap year), 30 or 31 days.
+    // Gregorian calendar rule: 28, 29 (leap year: divisible by 4, centuries only when divisible by 400),
+    // 30 or 31 days (common knowledge, no document checked).
     expect(monthHours(2024, 2)).toBe(29 * 24);
     expect(monthHours(2100, 2)).toBe(28 * 24);
     expect(monthHours(2000, 2)).toBe(29 * 24);
   });
 
   it('constant power P over a fully covered March in Oslo gives P × 743 h', () => {
+    // 743 h from the directive above; 7.5 kW × 743 h, and 7.5 of 20 kW is 37.5 % (arithmetic by hand).
     const hydro = { kind: 'hydro' as const, ratedKw: 20, designHeadM: 10, efficiency: 0.8 };
     const from = monthStartMs(2026, 3, 'Europe/Oslo');
     const to = monthStartMs(2026, 4, 'Europe/Oslo');
@@ -168,7 +171,8 @@ describe('month starts against luxon', () => {
 
 describe('months of one log in two zones', () => {
   it('a New Year’s hour in Oslo is December’s in UTC', () => {
-    // 23:00–23:50 UTC on 31 December 2025 is 00:00–00:50 on 1 January 2026 in Oslo (UTC+01:00).
+    // 23:00–23:50 UTC on 31 December 2025 is 00:00–00:50 on 1 January 2026 in Oslo, which keeps UTC+01:00
+    // in winter (Norwegian standard time; from memory, and the zone database agrees).
     const list = [];
     for (let t = Date.UTC(2025, 11, 31, 23); t <= Date.UTC(2025, 11, 31, 23, 50); t += 10 * 60_000) list.push({ ts: t, kw: 6 });
     const { samples } = energySamplesFrom({ kind: 'hydro', ratedKw: 10, designHeadM: 5, efficiency: 0.7 }, list);

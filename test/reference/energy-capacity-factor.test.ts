@@ -21,8 +21,9 @@ function everyTenMinutes(fromMs: number, toMs: number, make: (ts: number) => Omi
 
 describe('capacity factor = E / (P_rated × T)', () => {
   it('a 1 MW turbine making 2 190 MWh in a year of 8 760 h runs at 25 %', () => {
-    // Manwell, McGowan & Rogers, Wind Energy Explained, definition of capacity factor (from memory);
-    // the same ratio as energy statistics use. 2 190 000 / (1 000 × 8 760) = 0.25.
+    // Manwell, McGowan & Rogers, Wind Energy Explained: Theory, Design and Application, definition of
+    // capacity factor (from memory; the 1 MW / 2 190 MWh figures are a round example worked by hand, not
+    // copied from the book). 2 190 000 / (1 000 × 8 760) = 0.25.
     const f = energyFigures(
       {
         periodHours: 8760,
@@ -42,6 +43,8 @@ describe('capacity factor = E / (P_rated × T)', () => {
   });
 
   it('2.5 kW steady on a 10 kW unit through March is 1 860 kWh and 25 % in UTC', () => {
+    // March has 31 days, 744 h: 2.5 kW × 744 h = 1 860 kWh, over 10 kW × 744 h = 25 % (the definition
+    // above; arithmetic by hand).
     const list = everyTenMinutes(Date.UTC(2026, 2, 1), Date.UTC(2026, 3, 1), () => ({ kw: 2.5, flowM3s: 0.2 }));
     const [march] = monthlyEnergy(energySamplesFrom(hydro, list).samples, { ratedKw: 10 });
     expect(march?.kwh).toBeCloseTo(1860, 9);
@@ -50,7 +53,8 @@ describe('capacity factor = E / (P_rated × T)', () => {
   });
 
   it('uses the calendar month’s hours even when the log covers part of it (common practice)', () => {
-    // Half of April (360 h) at 10 kW on a 10 kW unit: 3 600 kWh over 7 200 kWh possible = 50 %, coverage 50 %.
+    // Half of April (360 h) at 10 kW on a 10 kW unit: 3 600 kWh over 7 200 kWh possible = 50 %, coverage 50 %
+    // (contract, section 5: the whole calendar month's hours; arithmetic by hand).
     const list = everyTenMinutes(Date.UTC(2026, 3, 1), Date.UTC(2026, 3, 16), () => ({ kw: 10 }));
     const [april] = monthlyEnergy(energySamplesFrom(hydro, list).samples, { ratedKw: 10 });
     expect(april?.kwh).toBeCloseTo(3600, 9);
@@ -75,6 +79,8 @@ describe('availability = time with resource and delivery over time with resource
   });
 
   it('no water, no availability figure', () => {
+    // Contract, section 5: availability is null when the resource was never there (common practice, no
+    // published source: a ratio over zero time with the resource means nothing).
     const start = Date.UTC(2026, 6, 1);
     const list = everyTenMinutes(start, start + 60 * MIN, () => ({ kw: 0, flowM3s: 0 }));
     const [july] = monthlyEnergy(energySamplesFrom(hydro, list).samples, { ratedKw: 10 });

@@ -7,19 +7,23 @@ import { monthlyEnergy } from '../../lib/energy/monthly-energy';
 
 describe('hydropower equation', () => {
   it('g is the standard acceleration of gravity', () => {
-    // 3rd CGPM (1901), kept in ISO 80000-3: g_n = 9.806 65 m/s² exactly.
+    // 3rd CGPM (1901), declaration on the standard value of g, kept in ISO 80000-3: g_n = 9.806 65 m/s²
+    // exactly (from memory).
     expect(STANDARD_GRAVITY_M_S2).toBe(9.80665);
   });
 
   it('Q = 1 m³/s through H = 10 m at η = 0.8 gives 78.45 kW', () => {
     // P = ρ·g·Q·H·η, the hydropower equation of small-hydro handbooks (e.g. the European Small
-    // Hydropower Association's guide to developing a small hydropower plant; from memory):
+    // Hydropower Association's Guide on How to Develop a Small Hydropower Plant, 2004; from memory).
+    // ρ = 1000 kg/m³ as the contract (section 5) takes it: fresh water is about 999.7 kg/m³ at 10 °C
+    // (water density tables, from memory), so 1000 is the handbooks' rounding, common practice.
+    // A round example worked by hand, not copied from the guide:
     // 1000 kg/m³ · 9.80665 m/s² · 1 m³/s · 10 m · 0.8 = 78 453.2 W.
     expect(hydroPowerKw(1, 10, 0.8)).toBeCloseTo(78.4532, 10);
   });
 
   it('a 100 l/s, 25 m head micro-hydro set at η = 0.6 gives 14.71 kW', () => {
-    // Same equation: 1000 · 9.80665 · 0.1 · 25 · 0.6 = 14 709.975 W.
+    // Same equation, an invented micro-hydro set worked by hand: 1000 · 9.80665 · 0.1 · 25 · 0.6 = 14 709.975 W.
     expect(hydroPowerKw(0.1, 25, 0.6)).toBeCloseTo(14.709975, 10);
   });
 
@@ -31,6 +35,7 @@ describe('hydropower equation', () => {
   });
 
   it('integrates to 78.4532 kWh over an hour of steady flow', () => {
+    // The 78.4532 kW above for 1 h (trapezoids of a constant are exact; arithmetic by hand).
     const list = [];
     for (let t = Date.UTC(2026, 5, 10, 12); t <= Date.UTC(2026, 5, 10, 13); t += 60_000) list.push({ ts: t, kw: 70, flowM3s: 1, headM: 10 });
     const plate = { kind: 'hydro' as const, ratedKw: 100, designHeadM: 12, efficiency: 0.8 };

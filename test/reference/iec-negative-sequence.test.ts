@@ -40,7 +40,13 @@ describe('IEC 61000-4-30 u2 from magnitudes', () => {
   });
 
   it('of 460, 467, 450 V is 2.15 %, close to NEMA 1.96 % as the two definitions are for small unbalance', () => {
-    // The magnitudes close a triangle; place it and compute V2/V1 by Fortescue.
+    // The voltages are NEMA MG 1's worked example of percent unbalance (part 14.35, from memory; see
+    // nema-unbalance.test.ts). No published figure gives their negative-sequence unbalance: 2.146 % is
+    // worked out here, by Fortescue's symmetrical components on the phasors (Fortescue, 1918, "Method of
+    // symmetrical co-ordinates applied to the solution of polyphase networks"; textbook method, from
+    // memory) and checked against IEC 61000-4-30's formula from magnitudes,
+    // u2 = √((1 − √(3 − 6β)) / (1 + √(3 − 6β))), β = ΣU⁴ / (ΣU²)² (clause on supply voltage unbalance,
+    // from memory). The magnitudes close a triangle; place it and compute V2/V1 by Fortescue.
     const [a, b, c] = [460, 467, 450];
     const angle = Math.acos((a * a + c * c - b * b) / (2 * a * c));
     const uab = polar(a, 0);
