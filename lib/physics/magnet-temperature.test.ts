@@ -3,6 +3,9 @@ import { keAtMagnetC, keTemperatureFactor, remanenceCoeffPctPerC } from './magne
 
 describe('magnet temperature', () => {
   it('uses the material coefficient unless overridden', () => {
+    // Contract, section 5: NdFeB −0.12, SmCo −0.035, ferrite −0.20 % per °C, typical values of materials
+    // handbooks and magnet makers' data (from memory, no table checked; the ranges are in
+    // test/reference/magnet-and-copper.test.ts).
     expect(remanenceCoeffPctPerC('ndfeb')).toBe(-0.12);
     expect(remanenceCoeffPctPerC('smco')).toBe(-0.035);
     expect(remanenceCoeffPctPerC('ferrite')).toBe(-0.2);
@@ -11,6 +14,7 @@ describe('magnet temperature', () => {
 
   it('raises Ke when cold and lowers it when hot', () => {
     expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: -20, coeffPctPerC: -0.12 })).toBeCloseTo(419.2, 9);
+    // 400 · (1 − 0.0012 · 40) = 419.2 and 400 · (1 − 0.002 · 50) = 360 (arithmetic by hand).
     expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: 70, coeffPctPerC: -0.2 })).toBeCloseTo(360, 9);
     expect(keTemperatureFactor(-0.12, 20, 20)).toBe(1);
   });
