@@ -13,8 +13,8 @@ describe('magnet temperature', () => {
   });
 
   it('raises Ke when cold and lowers it when hot', () => {
-    expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: -20, coeffPctPerC: -0.12 })).toBeCloseTo(419.2, 9);
     // 400 · (1 + 0.0012 · 40) = 419.2 at −20 °C, 400 · (1 − 0.002 · 50) = 360 at 70 °C (arithmetic by hand).
+    expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: -20, coeffPctPerC: -0.12 })).toBeCloseTo(419.2, 9);
     expect(keAtMagnetC({ keVPerKrpm: 400, refC: 20, magnetC: 70, coeffPctPerC: -0.2 })).toBeCloseTo(360, 9);
     expect(keTemperatureFactor(-0.12, 20, 20)).toBe(1);
   });
