@@ -1,0 +1,22 @@
+import type { Metadata } from 'next';
+import { MAX_FLEET_FILE_BYTES } from '../../../lib/setup/fleet-import';
+import { importFleetAction } from '../actions';
+import { SetupCrumbs } from '../_components/breadcrumbs';
+import { ImportForm } from '../_components/import-form';
+
+export const dynamic = 'force-dynamic';
+export const metadata: Metadata = { title: 'Import FLEET.json' };
+
+export default function ImportPage() {
+  return (
+    <>
+      <SetupCrumbs trail={[{ label: 'Import' }]} />
+      <h1>Import FLEET.json</h1>
+      <p className="note">
+        Registers or updates sites and units from a fleet file, exactly as <code>npx millrace units import FLEET.json</code> does: everything is
+        checked first, and if any entry is invalid nothing changes. <a href="/setup/export">Download the current fleet</a> to start from it.
+      </p>
+      <ImportForm action={importFleetAction} maxBytes={MAX_FLEET_FILE_BYTES} />
+    </>
+  );
+}

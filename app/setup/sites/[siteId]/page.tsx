@@ -1,0 +1,73 @@
+import type { Metadata } from 'next';
+import { notFound } from 'next/navigation';
+import { getDatabase } from '../../../../db/client';
+import { canEditSetup, currentViewer } from '../../../../lib/auth/viewer';
+import { SLUG } from '../../../../lib/contract/nameplate';
+import { getSetupSiteById, getSetupSites } from '../../../../lib/setup/queries';
+import { saveSiteAction } from '../../actions';
+import { SetupCrumbs } from '../../_components/breadcrumbs';
+import { SavedNote } from '../../_components/saved-note';
+import { SiteForm } from '../../_components/site-form';
+import { initialFormState } from '../../form-state';
+import { timeZoneNames } from '../../time-zones';
+
+export const dynamic = 'force-dynamic';
+
+export async function generateMetadata({ params }: { params: Promise<{ siteId: string }> }): Promise<Metadata> {
+  return { title: `Site ${(await params).siteId} · Setup` };
+}
+
+export default async function EditSitePage({ params, searchParams }: { params: Promise<{ siteId: string }>; searchParams: Promise<{ saved?: string }> }) {
+  const { siteId } = await params;
+  const { saved } = await searchParams;
+  if (!SLUG.test(siteId)) notFound();
+  const { db } = await getDatabase();
+  const viewer = await currentViewer();
+  const site = await getSetupSiteById({ db, viewer, siteId });
+  if (!site) notFound();
+  const units = (await getSetupSites({ db, viewer })).find((s) => s.id === siteId)?.units ?? [];
+  const editable = canEditSetup(viewer);
+  return (
+    <>
+      <SetupCrumbs trail={[{ label: site.name }]} />
+      <h1>{site.name}</h1>
+      <p className="note">
+        Site <span className="unit-id">{site.id}</span> · <a href={`/sites/${site.id}`}>its units’ health</a>
+      </p>
+      <SavedNote saved={saved} what="Site" />
+      {editable ? (
+        <SiteForm
+          action={saveSiteAction.bind(null, site.id)}
+          initial={initialFormState({ id: site.id, name: site.name, timezone: site.timezone })}
+          editingId={site.id}
+          timeZones={timeZoneNames()}
+          submitLabel="Save site"
+        />
+      ) : null}
+      <section className="panel" aria-labelledby="units-heading">
+        <h2 id="units-heading">Units on this site</h2>
+        {units.length === 0 ? <p className="note">None yet.</p> : null}
+        <ul>
+          {units.map((u) => (
+            <li key={u.id}>
+              <a href={`/setup/units/${site.id}/${u.id}`}>
+                <span className="unit-id">{u.id}</span>
+                {u.name ? ` · ${u.name}` : ''}
+              </a>{' '}
+              <span className="muted">
+                {u.kind === 'wind' ? 'wind' : 'hydro'}, {u.ratedKw} kW
+              </span>
+            </li>
+          ))}
+        </ul>
+        {editable ? (
+          <p>
+            <a className="button" href={`/setup/units/new?site=${site.id}`}>
+              Add a unit to {site.name}
+            </a>
+          </p>
+        ) : null}
+      </section>
+    </>
+  );
+}

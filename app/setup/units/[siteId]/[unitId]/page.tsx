@@ -1,0 +1,58 @@
+import type { Metadata } from 'next';
+import { notFound } from 'next/navigation';
+import { getDatabase } from '../../../../../db/client';
+import { canEditSetup, currentViewer } from '../../../../../lib/auth/viewer';
+import { SLUG } from '../../../../../lib/contract/nameplate';
+import { formOfNameplate } from '../../../../../lib/setup/forms';
+import { getSetupSiteById, getSetupUnitById } from '../../../../../lib/setup/queries';
+import { saveUnitAction } from '../../../actions';
+import { SetupCrumbs } from '../../../_components/breadcrumbs';
+import { SavedNote } from '../../../_components/saved-note';
+import { UnitForm } from '../../../_components/unit-form';
+import { initialFormState } from '../../../form-state';
+
+export const dynamic = 'force-dynamic';
+
+export async function generateMetadata({ params }: { params: Promise<{ siteId: string; unitId: string }> }): Promise<Metadata> {
+  return { title: `Unit ${(await params).unitId} · Setup` };
+}
+
+export default async function EditUnitPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ siteId: string; unitId: string }>;
+  searchParams: Promise<{ saved?: string }>;
+}) {
+  const { siteId, unitId } = await params;
+  const { saved } = await searchParams;
+  if (!SLUG.test(siteId) || !SLUG.test(unitId)) notFound();
+  const { db } = await getDatabase();
+  const viewer = await currentViewer();
+  const [site, nameplate] = await Promise.all([getSetupSiteById({ db, viewer, siteId }), getSetupUnitById({ db, viewer, siteId, unitId })]);
+  if (!site || !nameplate) notFound();
+  return (
+    <>
+      <SetupCrumbs trail={[{ href: `/setup/sites/${site.id}`, label: site.name }, { label: nameplate.name ?? nameplate.id }]} />
+      <h1>
+        Unit <span className="unit-id">{nameplate.id}</span>
+        {nameplate.name ? ` · ${nameplate.name}` : ''}
+      </h1>
+      <p className="note">
+        On {site.name} · <a href={`/sites/${site.id}/units/${nameplate.id}`}>its health and evidence</a>
+      </p>
+      <SavedNote saved={saved} what="Unit" />
+      {canEditSetup(viewer) ? (
+        <UnitForm
+          action={saveUnitAction.bind(null, { siteId: site.id, unitId: nameplate.id })}
+          initial={initialFormState(formOfNameplate(nameplate))}
+          sites={[{ id: site.id, name: site.name }]}
+          editing={{ siteId: site.id, unitId: nameplate.id }}
+          submitLabel="Save unit"
+        />
+      ) : (
+        <pre>{JSON.stringify(nameplate, null, 2)}</pre>
+      )}
+    </>
+  );
+}

@@ -1,0 +1,134 @@
+/**
+ * Data access of the setup screens: sites and units to edit, their writes,
+ * and the fleet as FLEET.json. Every function takes the viewer: reads are
+ * scoped to the viewer's sites from the start, writes need
+ * `canEditSetup(viewer)`, and a site or unit the viewer may not see is
+ * `undefined`, never told apart from one that does not exist.
+ */
+import { and, asc, eq, inArray } from 'drizzle-orm';
+import type { Db } from '../../db/client';
+import { sites, units, type SiteRow } from '../../db/schema';
+import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '../auth/viewer';
+import type { Fleet, Nameplate, Site } from '../contract/nameplate';
+import { nameplateOfUnit, upsertFleet } from '../fleet/queries';
+import type { FieldErrors } from './forms';
+
+export interface SetupUnit {
+  id: string;
+  name: string | null;
+  kind: 'wind' | 'hydro';
+  ratedKw: number;
+  poles: number;
+}
+
+export interface SetupSite {
+  id: string;
+  name: string;
+  timezone: string;
+  units: SetupUnit[];
+}
+
+/** A write's outcome: done, or problems by form field (`_form` for the form as a whole). */
+export type SaveResult = { ok: true } | { ok: false; fieldErrors: FieldErrors };
+
+const NOT_ALLOWED: SaveResult = { ok: false, fieldErrors: { _form: 'You may not change the setup: ask an administrator or operator.' } };
+
+/** The sites the viewer may see, by name, each with its units by id. */
+export async function getSetupSites({ db, viewer }: { db: Db; viewer: Viewer }): Promise<SetupSite[]> {
+  const only = siteFilter(viewer);
+  if (only !== undefined && only.length === 0) return [];
+  const siteRows = await db
+    .select({ id: sites.id, name: sites.name, timezone: sites.timezone })
+    .from(sites)
+    .where(only === undefined ? undefined : inArray(sites.id, [...only]))
+    .orderBy(asc(sites.name), asc(sites.id));
+  const unitRows = await db
+    .select({ id: units.id, siteId: units.siteId, name: units.name, kind: units.kind, ratedKw: units.ratedKw, poles: units.poles })
+    .from(units)
+    .where(only === undefined ? undefined : inArray(units.siteId, [...only]))
+    .orderBy(asc(units.id));
+  return siteRows.map((s) => ({ ...s, units: unitRows.filter((u) => u.siteId === s.id).map(({ siteId: _s, ...u }) => u) }));
+}
+
+/** One site, or undefined when there is none the viewer may see. */
+export async function getSetupSiteById({ db, viewer, siteId }: { db: Db; viewer: Viewer; siteId: string }): Promise<SiteRow | undefined> {
+  if (!canSeeSite(viewer, siteId)) return undefined;
+  const [row] = await db.select().from(sites).where(eq(sites.id, siteId)).limit(1);
+  return row;
+}
+
+/** One unit's nameplate, or undefined when there is none on that site the viewer may see. */
+export async function getSetupUnitById({ db, viewer, siteId, unitId }: { db: Db; viewer: Viewer; siteId: string; unitId: string }): Promise<Nameplate | undefined> {
+  if (!canSeeSite(viewer, siteId)) return undefined;
+  const [row] = await db
+    .select()
+    .from(units)
+    .where(and(eq(units.id, unitId), eq(units.siteId, siteId)))
+    .limit(1);
+  return row ? nameplateOfUnit(row) : undefined;
+}
+
+/** Registers a new site; an id already taken is a problem of the id field. */
+export async function insertSite({ db, viewer, site }: { db: Db; viewer: Viewer; site: Site }): Promise<SaveResult> {
+  if (!canEditSetup(viewer) || !canSeeSite(viewer, site.id)) return NOT_ALLOWED;
+  const inserted = await db.insert(sites).values(site).onConflictDoNothing({ target: sites.id }).returning({ id: sites.id });
+  if (inserted.length === 0) return { ok: false, fieldErrors: { id: `a site with id "${site.id}" exists already: choose another id, or edit that site` } };
+  return { ok: true };
+}
+
+/** Changes a site's name and time zone. */
+export async function updateSite({ db, viewer, site }: { db: Db; viewer: Viewer; site: Site }): Promise<SaveResult> {
+  if (!canEditSetup(viewer) || !canSeeSite(viewer, site.id)) return NOT_ALLOWED;
+  const updated = await db
+    .update(sites)
+    .set({ name: site.name, timezone: site.timezone, updatedAt: new Date() })
+    .where(eq(sites.id, site.id))
+    .returning({ id: sites.id });
+  if (updated.length === 0) return { ok: false, fieldErrors: { _form: `there is no site "${site.id}" any more: it may have been removed meanwhile` } };
+  return { ok: true };
+}
+
+/**
+ * Registers a new unit on an existing site. Unit ids are unique across the
+ * fleet (devices publish under them), so one taken anywhere is a problem of the id field.
+ */
+export async function insertUnit({ db, viewer, nameplate }: { db: Db; viewer: Viewer; nameplate: Nameplate }): Promise<SaveResult> {
+  if (!canEditSetup(viewer)) return NOT_ALLOWED;
+  if (!(await getSetupSiteById({ db, viewer, siteId: nameplate.siteId }))) {
+    return { ok: false, fieldErrors: { siteId: `no site "${nameplate.siteId}": add the site first` } };
+  }
+  const [taken] = await db.select({ siteId: units.siteId }).from(units).where(eq(units.id, nameplate.id)).limit(1);
+  if (taken) {
+    const where = canSeeSite(viewer, taken.siteId) ? ` on site "${taken.siteId}"` : '';
+    return { ok: false, fieldErrors: { id: `a unit with id "${nameplate.id}" exists already${where}: unit ids are unique across the fleet` } };
+  }
+  await upsertFleet({ db, fleet: { sites: [], units: [nameplate] } });
+  return { ok: true };
+}
+
+/** Replaces a unit's nameplate (its id and site stay). */
+export async function updateUnit({ db, viewer, nameplate }: { db: Db; viewer: Viewer; nameplate: Nameplate }): Promise<SaveResult> {
+  if (!canEditSetup(viewer)) return NOT_ALLOWED;
+  if (!(await getSetupUnitById({ db, viewer, siteId: nameplate.siteId, unitId: nameplate.id }))) {
+    return { ok: false, fieldErrors: { _form: `there is no unit "${nameplate.id}" on site "${nameplate.siteId}" any more` } };
+  }
+  await upsertFleet({ db, fleet: { sites: [], units: [nameplate] } });
+  return { ok: true };
+}
+
+/** The viewer's sites and units as FLEET.json (contract, section 4): what `units import` reads back. */
+export async function getFleetExport({ db, viewer }: { db: Db; viewer: Viewer }): Promise<Fleet> {
+  const only = siteFilter(viewer);
+  if (only !== undefined && only.length === 0) return { sites: [], units: [] };
+  const siteRows = await db
+    .select({ id: sites.id, name: sites.name, timezone: sites.timezone })
+    .from(sites)
+    .where(only === undefined ? undefined : inArray(sites.id, [...only]))
+    .orderBy(asc(sites.id));
+  const unitRows = await db
+    .select()
+    .from(units)
+    .where(only === undefined ? undefined : inArray(units.siteId, [...only]))
+    .orderBy(asc(units.siteId), asc(units.id));
+  return { sites: siteRows, units: unitRows.map(nameplateOfUnit) };
+}
