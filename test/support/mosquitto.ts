@@ -79,8 +79,8 @@ function waitForPort(port: number, timeoutMs: number): Promise<void> {
   });
 }
 
-/** Starts a Mosquitto with the shipped configuration on a free port. */
-export async function startMosquitto(): Promise<TestMosquitto> {
+/** Starts a Mosquitto with the shipped configuration on a free port (`bin`: another binary than the one found). */
+export async function startMosquitto({ bin = MOSQUITTO_BIN }: { bin?: string } = {}): Promise<TestMosquitto> {
   const port = await freePort();
   const dir = mkdtempSync(join(tmpdir(), 'millrace-mosquitto-'));
   const confPath = join(dir, 'mosquitto.conf');
@@ -99,16 +99,16 @@ export async function startMosquitto(): Promise<TestMosquitto> {
   let child: ChildProcess | undefined;
 
   const start = async () => {
-    if (!MOSQUITTO_BIN) throw new Error(`cannot start Mosquitto: ${mosquitto.missing}`);
+    if (!bin) throw new Error(`cannot start Mosquitto: ${mosquitto.missing}`);
     const out = openSync(logPath, 'a');
-    child = spawn(MOSQUITTO_BIN, ['-c', confPath], { stdio: ['ignore', out, out] });
+    child = spawn(bin, ['-c', confPath], { stdio: ['ignore', out, out] });
     closeSync(out);
     const started = child;
     // A spawn failure (ENOENT, EACCES) is an 'error' event: without a listener it
     // would escape as an unhandled error; it rejects start() instead.
     const failed = new Promise<never>((_, reject) =>
       started.once('error', (error: NodeJS.ErrnoException) =>
-        reject(new Error(`cannot start Mosquitto (${MOSQUITTO_BIN}): ${error.code === 'ENOENT' ? 'no such file' : error.message}`)),
+        reject(new Error(`cannot start Mosquitto (${bin}): ${error.code === 'ENOENT' ? 'no such file' : error.message}`)),
       ),
     );
     failed.catch(() => {});
@@ -117,7 +117,7 @@ export async function startMosquitto(): Promise<TestMosquitto> {
     process.once('exit', killOnExit);
     started.once('exit', () => process.off('exit', killOnExit));
     const exited = new Promise<never>((_, reject) =>
-      child!.once('exit', (code) => reject(new Error(`mosquitto exited with ${code}: ${readFileSync(logPath, 'utf8').slice(-2000)}`))),
+      child!.once('exit', (code) => reject(new Error(`mosquitto (${bin}) exited with ${code}: ${readFileSync(logPath, 'utf8').slice(-2000)}`))),
     );
     exited.catch(() => {});
     await Promise.race([waitForPort(port, 10_000), exited, failed]);
