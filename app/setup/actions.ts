@@ -52,15 +52,26 @@ export async function importFleetAction(previous: ImportState, data: FormData): 
   const submitted = previous.submitted + 1;
   const intent = data.get('intent') === 'check' ? 'check' : 'import';
   const file = data.get('file');
-  if (!(file instanceof File) || file.size === 0) {
+  const checked = data.get('fleetText');
+  let text: string;
+  let fileName: string;
+  if (typeof checked === 'string' && checked !== '') {
+    // A file checked before, sent back as text (see ImportForm).
+    text = checked;
+    fileName = String(data.get('fileName') ?? 'FLEET.json').slice(0, 200);
+  } else if (file instanceof File && file.size > 0) {
+    fileName = file.name;
+    if (file.size > MAX_FLEET_FILE_BYTES) {
+      return { submitted, intent, fileName, fileProblem: `${fileName} is ${file.size.toLocaleString('en-US')} bytes; the screen takes up to ${MAX_FLEET_FILE_BYTES.toLocaleString('en-US')}. Import larger fleets with npx millrace units import.` };
+    }
+    text = await file.text();
+  } else {
     return { submitted, intent, fileProblem: file instanceof File && file.name ? `${file.name} is empty` : 'Choose a FLEET.json file first.' };
   }
-  if (file.size > MAX_FLEET_FILE_BYTES) {
-    return { submitted, intent, fileName: file.name, fileProblem: `${file.name} is ${file.size.toLocaleString('en-US')} bytes; the screen takes up to ${MAX_FLEET_FILE_BYTES.toLocaleString('en-US')}. Import larger fleets with npx millrace units import.` };
-  }
-  const parsed = parseFleetText(await file.text());
-  if (!parsed.ok) return { submitted, intent, fileName: file.name, fileProblem: `${file.name}: ${parsed.problem}` };
+  if (Buffer.byteLength(text) > MAX_FLEET_FILE_BYTES) return { submitted, intent, fileName, fileProblem: `${fileName} is too large for the screen; use npx millrace units import` };
+  const parsed = parseFleetText(text);
+  if (!parsed.ok) return { submitted, intent, fileName, fileProblem: `${fileName}: ${parsed.problem}` };
   const { db } = await getDatabase();
   const report = await importFleetFile({ db, viewer: await currentViewer(), raw: parsed.raw, apply: intent === 'import' });
-  return { submitted, intent, fileName: file.name, report };
+  return { submitted, intent, fileName, report, checkedText: report.ok && intent === 'check' ? text : undefined };
 }

@@ -21,4 +21,6 @@ export interface ImportState {
   /** A problem with the upload itself (no file, too large, not JSON). */
   fileProblem?: string;
   report?: FleetImportReport;
+  /** The text of a file checked and found valid, so that it can be imported without choosing it again. */
+  checkedText?: string;
 }

@@ -35,11 +35,6 @@ export function Field({ name, label, hint, error, defaultValue, optional, readOn
       <label htmlFor={id} className={styles.label}>
         {label} {optional ? <span className={styles.optional}>(optional)</span> : null}
       </label>
-      {hint ? (
-        <span id={`${id}-hint`} className={styles.hint}>
-          {hint}
-        </span>
-      ) : null}
       <input
         id={id}
         name={name}
@@ -56,6 +51,11 @@ export function Field({ name, label, hint, error, defaultValue, optional, readOn
       {error ? (
         <span id={`${id}-error`} className={styles.error}>
           {error}
+        </span>
+      ) : null}
+      {hint ? (
+        <span id={`${id}-hint`} className={styles.hint}>
+          {hint}
         </span>
       ) : null}
     </div>
@@ -87,11 +87,6 @@ export function SelectField({
       <label htmlFor={id} className={styles.label}>
         {label}
       </label>
-      {hint ? (
-        <span id={`${id}-hint`} className={styles.hint}>
-          {hint}
-        </span>
-      ) : null}
       <select
         id={id}
         name={name}
@@ -110,6 +105,11 @@ export function SelectField({
       {error ? (
         <span id={`${id}-error`} className={styles.error}>
           {error}
+        </span>
+      ) : null}
+      {hint ? (
+        <span id={`${id}-hint`} className={styles.hint}>
+          {hint}
         </span>
       ) : null}
     </div>

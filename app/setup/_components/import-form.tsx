@@ -73,6 +73,15 @@ export function ImportForm({ action, maxBytes }: { action: Action; maxBytes: num
         </div>
       </form>
 
+      {report?.ok && !applied && state.checkedText ? (
+        <form action={formAction} className={styles.actions}>
+          <input type="hidden" name="fleetText" value={state.checkedText} />
+          <input type="hidden" name="fileName" value={state.fileName ?? 'FLEET.json'} />
+          <button type="submit" name="intent" value="import" className={styles.primary} disabled={pending}>
+            Import the checked {state.fileName ?? 'file'}
+          </button>
+        </form>
+      ) : null}
       <div ref={resultRef} tabIndex={-1} aria-live="polite" className={setup.result}>
         {report ? (
           <section className="panel" aria-labelledby="import-result">
@@ -105,8 +114,11 @@ export function ImportForm({ action, maxBytes }: { action: Action; maxBytes: num
                       className={`${setup.tag} ${entry.action === 'invalid' ? setup.tagInvalid : entry.action === 'add' ? setup.tagAdd : setup.tagUpdate}`}
                     >
                       {entry.kind === 'site' ? 'Site' : 'Unit'} {entry.id ? <span className={setup.code}>{entry.id}</span> : '(no id)'}
-                      {entry.kind === 'unit' && entry.siteId ? <span className="muted"> on {entry.siteId}</span> : null}:{' '}
-                      {applied ? DONE_TEXT[entry.action] : report.ok ? ACTION_TEXT[entry.action] : entry.action === 'invalid' ? 'invalid' : 'valid'}
+                      {entry.kind === 'unit' && entry.siteId ? <span className="muted"> on {entry.siteId}</span> : null}
+                      {': '}
+                      <span className={setup.verdict}>
+                        {applied ? DONE_TEXT[entry.action] : report.ok ? ACTION_TEXT[entry.action] : entry.action === 'invalid' ? 'invalid' : 'valid'}
+                      </span>
                     </span>
                   </span>
                   {entry.problems.length > 0 ? (

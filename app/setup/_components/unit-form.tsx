@@ -172,9 +172,6 @@ export function UnitForm({
           <label htmlFor={fieldId('powerCurve')} className={styles.label}>
             Power curve
           </label>
-          <span id={`${fieldId('powerCurve')}-hint`} className={styles.hint}>
-            One point a line: wind speed in m/s, then power in kW at 1.225 kg/m³, such as “5 1.2”. At least two points, wind speed rising.
-          </span>
           <textarea
             id={fieldId('powerCurve')}
             name="powerCurve"
@@ -190,6 +187,9 @@ export function UnitForm({
               {e.powerCurve}
             </span>
           ) : null}
+          <span id={`${fieldId('powerCurve')}-hint`} className={styles.hint}>
+            One point a line: wind speed in m/s, then power in kW at 1.225 kg/m³, such as “5 1.2”. At least two points, wind speed rising.
+          </span>
         </div>
       </fieldset>
 
