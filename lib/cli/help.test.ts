@@ -79,8 +79,8 @@ describe('help', () => {
 
   it.each(Object.values(COMMAND_HELP).map((c) => [c.name, c] as const))('lists every option "%s" parses, each with a description', async (name, entry) => {
     parsedSpecs.length = 0;
-    // An option no command has: parseOptions sees the command's spec, then refuses.
-    const r = await run([...name.split(' '), '--no-such-option-here']);
+    // An option no command has, after the command's arguments: parseOptions sees the command's spec, then refuses.
+    const r = await run([...name.split(' '), ...(entry.arguments ?? []).map((a) => a.name), '--no-such-option-here']);
     expect(r.status).toBe(2);
     const parsed = parsedSpecs.flatMap((spec) => Object.keys(spec).map((k) => `--${k}`)).sort();
     const listed = entry.options.map((o) => o.flag).sort();

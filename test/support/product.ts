@@ -47,7 +47,14 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
   let output = '';
   child.stdout!.on('data', (d) => (output += String(d)));
   child.stderr!.on('data', (d) => (output += String(d)));
-  const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
+  const exited = new Promise<number | null>((resolve) => {
+    child.once('exit', (code) => resolve(code));
+    // A spawn failure emits 'error' and no 'exit': it ends the start with its reason, never an unhandled error.
+    child.once('error', (error) => {
+      output += `cannot start millrace (${process.execPath}): ${error.message}\n`;
+      resolve(null);
+    });
+  });
 
   const cleanUp = async () => {
     rmSync(dir, { recursive: true, force: true });

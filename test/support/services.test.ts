@@ -110,7 +110,8 @@ describe('a test needing a missing service', { timeout: 60_000 }, () => {
   it('is skipped with its reason printed, and the run passes', async () => {
     const { code, output } = await runFixture({ MILLRACE_REQUIRE_SERVICES: '' });
     expect(output).toContain('skipped: test/support/fixtures/needs-absent.fixture.ts (absent cases): Absentd needs absentd on PATH');
-    expect(output).toMatch(/1 passed \| 1 skipped/);
+    expect(output).toContain('skipped: test/support/fixtures/needs-absent.fixture.ts (absent in a body): Absentd needs absentd on PATH');
+    expect(output).toMatch(/1 passed \| 2 skipped/);
     expect(code).toBe(0);
   });
 
@@ -118,6 +119,8 @@ describe('a test needing a missing service', { timeout: 60_000 }, () => {
     const { code, output } = await runFixture({ MILLRACE_REQUIRE_SERVICES: '1' });
     expect(output).toContain('MILLRACE_REQUIRE_SERVICES=1: test/support/fixtures/needs-absent.fixture.ts (absent cases) cannot run, Absentd is missing: needs absentd on PATH');
     expect(output).toContain('absent cases: needs Absentd');
+    expect(output).toContain('MILLRACE_REQUIRE_SERVICES=1: test/support/fixtures/needs-absent.fixture.ts (absent in a body) cannot run, Absentd is missing');
+    expect(output).toMatch(/2 failed \| 1 passed/);
     expect(code).toBe(1);
   });
 });
