@@ -1,10 +1,14 @@
+import type { Metadata } from 'next';
 import { QUARANTINE_COUNT_CAP } from '../lib/fleet/queries';
-import { loadFleetOverview } from '../lib/fleet/overview';
-import { StateBadge } from './_components/state-badge';
-import { unitStateOf } from '../lib/fleet/unit-state';
-import { ago } from './_components/format';
+import { loadFleetScreen } from '../lib/fleet/overview';
+import { UNIT_STATES, UNIT_STATE_NAME, sinceText } from '../lib/fleet/unit-state';
+import { SAFETY_CAUTION } from '../lib/diagnosis/findings';
+import { StateBadge, StateIcon } from './_components/state-badge';
+import { LocalTime } from './_components/local-time';
+import { ago, formatEnergyKwh, formatPowerKw } from './_components/format';
 
 export const dynamic = 'force-dynamic';
+export const metadata: Metadata = { title: 'Fleet' };
 
 /** A count of set-aside rows; the query stops counting past the cap. */
 function setAsideCount(n: number): string {
@@ -12,18 +16,31 @@ function setAsideCount(n: number): string {
 }
 
 export default async function FleetPage() {
-  const fleet = await loadFleetOverview();
-  const now = new Date();
-  const { retentionDays } = fleet;
+  const fleet = await loadFleetScreen();
+  const now = new Date(fleet.nowMs);
+  const totals = Object.fromEntries(UNIT_STATES.map((s) => [s, fleet.sites.reduce((n, site) => n + site.counts[s], 0)])) as Record<
+    (typeof UNIT_STATES)[number],
+    number
+  >;
+  const unitCount = fleet.sites.reduce((n, s) => n + s.unitCount, 0);
+  const attention = unitCount - totals.healthy;
   return (
     <>
-      <section className="summary" aria-label="fleet summary">
-        <h1>Fleet</h1>
-        <p>
-          <strong>{fleet.unitCount}</strong> unit{fleet.unitCount === 1 ? '' : 's'} on <strong>{fleet.sites.length}</strong> site
-          {fleet.sites.length === 1 ? '' : 's'} · <strong>{fleet.onlineCount}</strong> reporting ·{' '}
-          <strong>{fleet.attentionCount}</strong> needing attention
-        </p>
+      <section className="page-head" aria-labelledby="fleet-heading">
+        <div>
+          <h1 id="fleet-heading">Fleet</h1>
+          <p data-testid="fleet-summary">
+            {unitCount} unit{unitCount === 1 ? '' : 's'} on {fleet.sites.length} site{fleet.sites.length === 1 ? '' : 's'}:{' '}
+            {attention === 0 ? <strong>all healthy</strong> : <strong>{attention} need attention</strong>}
+          </p>
+          <ul className="state-counts" aria-label="Units in each state, whole fleet">
+            {UNIT_STATES.map((s) => (
+              <li key={s} className={totals[s] === 0 ? 'zero' : undefined}>
+                <StateIcon state={s} /> {UNIT_STATE_NAME[s]} <strong>{totals[s]}</strong>
+              </li>
+            ))}
+          </ul>
+        </div>
         {fleet.demo && fleet.demo.status !== 'off' ? (
           <p className="note">Demo fleet (invented sites and units): {fleet.demo.phase ?? fleet.demo.status}.</p>
         ) : null}
@@ -33,86 +50,107 @@ export default async function FleetPage() {
         <section className="empty" data-testid="empty-fleet">
           <h2>No units registered yet</h2>
           <p>
-            Register sites and units with <code>npx millrace units import FLEET.json</code> (see README), then point each
-            unit&apos;s controller at the MQTT topic <code>millrace/&lt;site&gt;/&lt;unit&gt;/telemetry</code>.
+            Register sites and units on the <a href="/setup">Setup</a> page, or with <code>npx millrace units import FLEET.json</code> (see
+            README); then point each unit&apos;s controller at the MQTT topic <code>millrace/&lt;site&gt;/&lt;unit&gt;/telemetry</code>.
           </p>
           <p>To see millrace with an invented demo fleet instead, start it with <code>DEMO=on</code> (the default on embedded settings).</p>
         </section>
       ) : (
-        fleet.sites.map((site) => (
-          <section key={site.id} className="site" data-testid={`site-${site.id}`}>
-            <h2>
-              {site.name} <span className="muted">{site.timezone}</span>
-            </h2>
-            <table>
-              <thead>
-                <tr>
-                  <th scope="col">Unit</th>
-                  <th scope="col">Kind</th>
-                  <th scope="col" className="num">Rated kW</th>
-                  <th scope="col">Link</th>
-                  <th scope="col">Last sample</th>
-                  <th scope="col">Diagnosis</th>
-                  <th scope="col" className="num" title="measured Ke, corrected for load and magnet temperature, over nameplate Ke">
-                    Ke ratio
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {site.units.map((unit) => (
-                  <tr key={unit.id} data-unit={unit.id}>
-                    <td>
-                      <span className="unit-id">{unit.id}</span>
-                      {unit.name ? <span className="muted"> {unit.name}</span> : null}
-                    </td>
-                    <td>{unit.kind}</td>
-                    <td className="num">{unit.ratedKw.toFixed(1)}</td>
-                    <td>
-                      <span className={`link link-${unit.presence ?? 'unknown'}`}>{unit.presence ?? 'unknown'}</span>
-                    </td>
-                    <td>{ago(unit.lastSampleTs, now)}</td>
-                    <td>
-                      <StateBadge
-                        {...unitStateOf({
-                          health: unit.verdict === null ? undefined : { verdict: unit.verdict, findings: [] },
-                          lastSampleMs: unit.lastSampleTs?.getTime() ?? null,
-                          nowMs: now.getTime(),
-                        })}
-                      />
-                    </td>
-                    <td className="num">{unit.keRatio === null ? '–' : unit.keRatio.toFixed(3)}</td>
-                  </tr>
+        <div className="grid">
+          {fleet.sites.map((site) => (
+            <section
+              key={site.id}
+              className={`site panel ${site.worst === 'fault' ? 'panel-fault' : site.worst === 'warning' ? 'panel-warning' : ''}`}
+              data-testid={`site-${site.id}`}
+              data-site={site.id}
+              data-worst={site.worst}
+              aria-labelledby={`site-${site.id}-name`}
+            >
+              <h2 id={`site-${site.id}-name`}>
+                <a href={`/sites/${site.id}`}>{site.name}</a>{' '}
+                <span className="muted">
+                  {site.unitCount} unit{site.unitCount === 1 ? '' : 's'}
+                </span>
+              </h2>
+              <ul className="state-counts" aria-label={`Units in each state at ${site.name}`}>
+                {UNIT_STATES.map((s) => (
+                  <li key={s} className={site.counts[s] === 0 ? 'zero' : undefined}>
+                    <StateIcon state={s} /> {UNIT_STATE_NAME[s]} <strong>{site.counts[s]}</strong>
+                  </li>
                 ))}
-              </tbody>
-            </table>
-          </section>
-        ))
+              </ul>
+              <dl className="figures">
+                <div>
+                  <dt>Power now</dt>
+                  <dd>{formatPowerKw(site.powerKw)}</dd>
+                </div>
+                <div>
+                  <dt>Energy today</dt>
+                  <dd>{formatEnergyKwh(site.energyTodayKwh)}</dd>
+                </div>
+                <div>
+                  <dt>Oldest last sample</dt>
+                  <dd>
+                    {site.neverSent ? (
+                      'a unit never sent one'
+                    ) : site.oldestLastSampleMs === null ? (
+                      '–'
+                    ) : (
+                      <>
+                        <LocalTime time={new Date(site.oldestLastSampleMs)} timeZone={site.timezone} now={now} />{' '}
+                        <span className="muted">({ago(new Date(site.oldestLastSampleMs), now)})</span>
+                      </>
+                    )}
+                  </dd>
+                </div>
+              </dl>
+              {site.attention.length === 0 ? (
+                <p className="note">Every unit healthy and reporting.</p>
+              ) : (
+                <>
+                  <h3 className="visually-hidden">Units needing attention at {site.name}</h3>
+                  <ul className="attention" data-testid="attention">
+                    {site.attention.map((a) => (
+                      <li key={a.id} data-unit={a.id} data-state={a.state}>
+                        <StateBadge state={a.state} label={a.label} />
+                        <a href={`/sites/${site.id}/units/${a.id}`}>
+                          <span className="unit-id">{a.id}</span>
+                          {a.name ? ` ${a.name}` : ''}
+                        </a>
+                        <span className="why">{a.reason}</span>
+                      </li>
+                    ))}
+                  </ul>
+                </>
+              )}
+            </section>
+          ))}
+        </div>
       )}
-      {fleet.quarantine.total > 0 ? (
-        <section className="set-aside" data-testid="set-aside">
-          <h2>
+
+      {fleet.quarantine && fleet.quarantine.total > 0 ? (
+        <section className="panel set-aside" data-testid="set-aside" aria-labelledby="set-aside-heading">
+          <h2 id="set-aside-heading">
             Telemetry set aside{' '}
             <span className="muted">
-              {setAsideCount(fleet.quarantine.lastDay)} in the last day, {setAsideCount(fleet.quarantine.total)} in the last {retentionDays} days
+              {setAsideCount(fleet.quarantine.lastDay)} in the last day, {setAsideCount(fleet.quarantine.total)} in the last {fleet.retentionDays} days
             </span>
           </h2>
           <p className="note">
-            Telemetry that could not be stored (invalid, or from a unit not registered) is kept here with the reason for {retentionDays} days
-            (RETENTION_DAYS). Newest first:
+            Telemetry that could not be stored (invalid, or from a unit not registered), kept with the reason for {fleet.retentionDays} days. Newest
+            first; all of it, by unit, on <a href="/data-quality">Data quality</a>.
           </p>
           <ul>
             {fleet.quarantine.recent.map((q, i) => (
               <li key={i}>
-                <span className="muted">{ago(q.receivedAt, now)}</span> <code>{q.topic}</code> {q.reason}
+                <span className="muted">{sinceText(fleet.nowMs - q.receivedAt.getTime())} ago</span> <code>{q.topic}</code> {q.reason}
               </li>
             ))}
           </ul>
         </section>
       ) : null}
       <footer className="caution">
-        A permanent-magnet generator makes voltage whenever its shaft turns, even when disconnected. Before anyone works on a
-        unit: stop and lock the rotor, isolate and prove dead, following the manufacturer&apos;s procedure, local electrical
-        codes and licensed practice.
+        {SAFETY_CAUTION}
       </footer>
     </>
   );

@@ -1,38 +1,62 @@
 /**
- * The fleet list of the home page, read from this process's database.
+ * What the fleet and site screens read, one function a screen: this process's
+ * database, the viewer of the request, and the queries of lib/fleet/queries.ts.
  */
 import { getDatabase } from '../../db/client';
+import { canEditSetup, currentViewer, siteFilter } from '../auth/viewer';
 import { getConfig } from '../config/env';
 import { getComponentState } from '../server/registry';
-import { getFleetOverview, getQuarantineSummary, type FleetOverviewSite, type QuarantineSummary } from './queries';
+import { getFleetSites, getQuarantineSummary, getSiteView, type FleetSite, type QuarantineSummary, type SiteView } from './queries';
+import { parseSiteTableParams, sortSiteUnits, type SiteTableParams } from './site-table';
+import type { UnitLatest } from './queries';
 
-export interface FleetOverview {
-  sites: FleetOverviewSite[];
-  unitCount: number;
-  onlineCount: number;
-  attentionCount: number;
-  /** Telemetry set aside as invalid, with the newest reasons. */
-  quarantine: QuarantineSummary;
+export interface FleetScreen {
+  readonly sites: FleetSite[];
+  readonly nowMs: number;
+  /** Telemetry set aside as invalid, for a viewer who sees every site (it is not tied to one). */
+  readonly quarantine: QuarantineSummary | undefined;
   /** How long raw samples and set-aside telemetry are kept (RETENTION_DAYS). */
-  retentionDays: number;
+  readonly retentionDays: number;
+  readonly canEditSetup: boolean;
   /** What the demo fleet is doing, or undefined when it is not part of this process. */
-  demo?: { status: string; phase?: string };
+  readonly demo?: { status: string; phase?: string };
 }
 
-/** Sites, units and their latest state, with counts for the summary line. */
-export async function loadFleetOverview(): Promise<FleetOverview> {
+/** Every site the viewer sees, worst first, with what needs attention. */
+export async function loadFleetScreen(): Promise<FleetScreen> {
   const { db } = await getDatabase();
-  const [sites, quarantine] = await Promise.all([getFleetOverview({ db }), getQuarantineSummary({ db })]);
-  const units = sites.flatMap((s) => s.units);
-  // Only the demo fleet's state is shown here; the other parts are for /api/health.
+  const viewer = await currentViewer();
+  const nowMs = Date.now();
+  const seesAll = siteFilter(viewer) === undefined;
+  const [sites, quarantine] = await Promise.all([getFleetSites({ db, viewer, nowMs }), seesAll ? getQuarantineSummary({ db }) : undefined]);
   const demo = (await getComponentState('demo')) as { status: string; phase?: string } | undefined;
   return {
     sites,
-    unitCount: units.length,
-    onlineCount: units.filter((u) => u.presence === 'online').length,
+    nowMs,
     quarantine,
     retentionDays: getConfig().RETENTION_DAYS,
-    attentionCount: units.filter((u) => u.verdict !== null && u.verdict !== 'healthy' && u.verdict !== 'insufficient-data').length,
+    canEditSetup: canEditSetup(viewer),
     demo: demo ? { status: demo.status, phase: demo.phase } : undefined,
   };
+}
+
+export interface SiteScreen {
+  readonly site: SiteView;
+  /** The units to show, filtered and sorted as asked. */
+  readonly rows: UnitLatest[];
+  readonly params: SiteTableParams;
+  /** Search parameters that could not be used, each naming the parameter. */
+  readonly problems: string[];
+  readonly nowMs: number;
+}
+
+/** One site's table for the viewer; undefined when there is no such site or the viewer may not see it. */
+export async function loadSiteScreen(siteId: string, search: Record<string, string | string[] | undefined>): Promise<SiteScreen | undefined> {
+  const { db } = await getDatabase();
+  const viewer = await currentViewer();
+  const nowMs = Date.now();
+  const site = await getSiteView({ db, viewer, siteId, nowMs });
+  if (site === undefined) return undefined;
+  const { params, problems } = parseSiteTableParams(search);
+  return { site, rows: sortSiteUnits(site.units, params), params, problems, nowMs };
 }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { compareStates, firstSentence, OFFLINE_AFTER_MS, sinceText, unitStateOf, UNIT_STATES } from './unit-state';
+import { compareStates, firstSentence, shortReason, OFFLINE_AFTER_MS, sinceText, unitStateOf, UNIT_STATES } from './unit-state';
 
 const now = Date.parse('2026-12-02T12:00:00Z');
 const fresh = now - 60_000;
@@ -45,7 +45,7 @@ describe('unitStateOf', () => {
     });
     expect(s.state).toBe('fault');
     expect(s.label).toBe('Magnets weakened');
-    expect(s.reason).toBe('Magnets weakened: Ke is 0.91 of nameplate.');
+    expect(s.reason).toBe('Ke is 0.91 of nameplate.');
   });
 
   it('treats an alarm finding on a healthy verdict (such as overspeed) as a fault', () => {
@@ -55,7 +55,8 @@ describe('unitStateOf', () => {
       nowMs: now,
     });
     expect(s.state).toBe('fault');
-    expect(s.label).toBe('Healthy, with an alarm');
+    expect(s.label).toBe('Overspeed');
+    expect(s.reason).toBe('Speed went above maxRpm 3 times.');
   });
 
   it('treats a warning finding as a warning, but not the "not enough data" one', () => {
@@ -65,6 +66,7 @@ describe('unitStateOf', () => {
       nowMs: now,
     });
     expect(warn.state).toBe('warning');
+    expect(warn.label).toBe('Healthy, ke low warning');
     const notEnough = unitStateOf({
       health: { verdict: 'insufficient-data', findings: [{ code: 'insufficient-data', severity: 'warning', message: 'Only 3 samples.' }] },
       lastSampleMs: fresh,
@@ -93,6 +95,13 @@ describe('sinceText and firstSentence', () => {
     expect(sinceText(20 * 60_000)).toBe('20 min');
     expect(sinceText(5 * 86_400_000)).toBe('5 d');
     expect(() => sinceText(Number.NaN)).toThrow(RangeError);
+  });
+  it('cuts a long reason at a clause boundary', () => {
+    const long = `Ke corrected for load and magnet temperature is 0.929 (95 % interval 0.928 to 0.929) of nameplate (2,073.6 V per 1000 rpm against 2,233.3 on the nameplate at 20 °C), below the 0.95 alarm line. Next.`;
+    const r = shortReason(long);
+    expect(r.length).toBeLessThanOrEqual(162);
+    expect(r.endsWith(' …')).toBe(true);
+    expect(long.startsWith(r.slice(0, -2))).toBe(true);
   });
   it('keeps the first sentence of a message', () => {
     expect(firstSentence('Ke is 0.961 (95 % interval 0.95 to 0.97). Next step.')).toBe('Ke is 0.961 (95 % interval 0.95 to 0.97).');

@@ -3,7 +3,7 @@
  * its latest diagnosis and how long ago its last sample arrived. Pure: the
  * queries feed it, the screens and the read API show it.
  */
-import { NOT_JUDGED_LABEL, noDataLabel, verdictLabel } from '../diagnosis/vocabulary';
+import { NOT_JUDGED_LABEL, noDataLabel, VERDICT_BASIS, verdictLabel } from '../diagnosis/vocabulary';
 
 /** Unit states, worst first: the order of the fleet's counts and of every sort by state. */
 export const UNIT_STATES = ['fault', 'warning', 'no-data', 'not-judged', 'healthy'] as const;
@@ -70,6 +70,33 @@ export function firstSentence(message: string): string {
   return (m ? m[1] : message) as string;
 }
 
+/** Longest reason line before it is cut at a clause boundary. */
+const REASON_MAX = 160;
+
+/**
+ * The first sentence of a finding, cut at a clause boundary when long (the
+ * whole finding is on the unit's page).
+ * @example shortReason('Ke is 0.91 of nameplate. Check it.') // 'Ke is 0.91 of nameplate.'
+ */
+export function shortReason(message: string): string {
+  const first = firstSentence(message);
+  if (first.length <= REASON_MAX) return first;
+  const cut = Math.max(first.lastIndexOf(';', REASON_MAX), first.lastIndexOf(',', REASON_MAX), first.lastIndexOf(' (', REASON_MAX));
+  return `${first.slice(0, cut > 60 ? cut : REASON_MAX).trimEnd()} …`;
+}
+
+/**
+ * A finding code in words, for a badge.
+ * @example codeWords('overspeed') // 'Overspeed'
+ */
+export function codeWords(code: string): string {
+  const words = code.replace(/-/g, ' ');
+  return words.charAt(0).toUpperCase() + words.slice(1);
+}
+
+/** What a fault verdict rests on, when no finding says more. */
+const VERDICT_BASIS_TEXT: Record<string, string> = VERDICT_BASIS;
+
 /**
  * The state of a unit from its latest health (undefined: never diagnosed) and
  * its last sample time (null: never sent one) at `nowMs`.
@@ -109,14 +136,14 @@ export function unitStateOf({
     const top = alarm ?? firstFinding(health, 'warning');
     return {
       state: 'fault',
-      label: FAULT_VERDICTS.has(health.verdict) ? (last as string) : `${last}, with an alarm`,
-      reason: `${last}${top ? `: ${firstSentence(top.message)}` : ''}`,
+      label: FAULT_VERDICTS.has(health.verdict) ? (last as string) : codeWords((alarm as { code: string }).code),
+      reason: top ? shortReason(top.message) : `${last}: ${VERDICT_BASIS_TEXT[health.verdict] ?? 'see the unit’s findings'}.`,
       rank: 0,
     };
   }
   const warning = firstFinding(health, 'warning');
   if (warning !== undefined) {
-    return { state: 'warning', label: `${last} (with a warning)`, reason: firstSentence(warning.message), rank: 0 };
+    return { state: 'warning', label: `${last}, ${codeWords(warning.code).toLowerCase()} warning`, reason: shortReason(warning.message), rank: 0 };
   }
   if (health.verdict === 'insufficient-data') {
     return {

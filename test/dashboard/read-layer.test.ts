@@ -112,7 +112,7 @@ describe('fleet screen', () => {
     const [upper, far, quiet] = sites;
     expect(upper!.counts).toEqual({ fault: 1, warning: 0, 'no-data': 0, 'not-judged': 0, healthy: 1 });
     expect(upper!.attention).toEqual([
-      { id: 'ul-1', name: null, state: 'fault', label: 'Magnets weakened', reason: 'Magnets weakened: Ke is 0.912 of nameplate, below the 0.95 threshold.' },
+      { id: 'ul-1', name: null, state: 'fault', label: 'Magnets weakened', reason: 'Ke is 0.912 of nameplate, below the 0.95 threshold.' },
     ]);
     expect(far!.counts).toEqual({ fault: 0, warning: 0, 'no-data': 1, 'not-judged': 1, healthy: 0 });
     expect(far!.attention.map((a) => [a.id, a.label])).toEqual([
