@@ -50,7 +50,11 @@ const WRITING = new Set(['write', 'mkdir', 'rename', 'unlink', 'rmdir', 'copyfil
  */
 export function describeFileError(error: unknown, what: string, path?: string): string {
   const e = error as NodeJS.ErrnoException;
-  const verb = e?.syscall && WRITING.has(e.syscall) ? 'write' : 'read';
   const where = path ?? e?.path ?? '';
+  if (e?.syscall === 'mkdir') {
+    const words = e.code === 'EEXIST' || e.code === 'ENOTDIR' ? 'a file of that name is in the way' : fileErrorWords(error);
+    return `cannot create folder${where ? ` ${where}` : ''}: ${words}`;
+  }
+  const verb = e?.syscall && WRITING.has(e.syscall) ? 'write' : 'read';
   return `cannot ${verb} ${what}${where ? ` ${where}` : ''}: ${fileErrorWords(error)}`;
 }

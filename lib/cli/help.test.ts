@@ -4,10 +4,12 @@
  * promises are the ones the command accepts, and file errors are in words,
  * never a bare ENOENT / EACCES / EISDIR.
  */
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
+import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it, vi } from 'vitest';
 import { isIanaTimeZone } from '../contract/nameplate';
 import { TEST_NAMEPLATE } from '../../test/support/synthetic-unit';
@@ -149,11 +151,24 @@ describe('file errors in words', () => {
     expect(r.err).not.toMatch(bareCode);
   });
 
+  it('puts a file error no command worded in words too (the embedded database folder blocked by a file)', () => {
+    const blocker = join(dir, 'a-file');
+    writeFileSync(blocker, '');
+    const env: NodeJS.ProcessEnv = { ...process.env, DATA_DIR: join(blocker, 'data') };
+    delete env.DATABASE_URL;
+    const r = spawnSync(process.execPath, [fileURLToPath(new URL('../../bin/millrace.mjs', import.meta.url)), 'export', '--unit', 'a/b'], { env, encoding: 'utf8' });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toBe(`millrace export: cannot create folder ${join(blocker, 'data')}: a file of that name is in the way\n`);
+  });
+
   it('puts the codes a user meets in words, and an unlisted one without its code', () => {
     const error = (code: string, message: string, syscall = 'open') => Object.assign(new Error(message), { code, syscall, path: '/x' });
     expect(describeFileError(error('EACCES', "EACCES: permission denied, open '/x'"), 'log')).toBe('cannot read log /x: permission denied');
     expect(describeFileError(error('ENOSPC', 'ENOSPC: no space left on device, write', 'write'), 'file')).toBe(
       'cannot write file /x: no space left on the device',
+    );
+    expect(describeFileError(error('EEXIST', "EEXIST: file already exists, mkdir '/x'", 'mkdir'), 'file')).toBe(
+      'cannot create folder /x: a file of that name is in the way',
     );
     expect(fileErrorWords(error('EXDEV', "EXDEV: cross-device link not permitted, rename '/a' -> '/b'"))).toBe('cross-device link not permitted');
     for (const code of ['ENOENT', 'EACCES', 'EISDIR', 'ENOTDIR', 'EPERM', 'EMFILE', 'ELOOP']) {
