@@ -21,7 +21,7 @@ type Status = 'connecting' | 'live' | 'paused' | 'reconnecting';
 const STATUS_TEXT: Record<Status, string> = {
   connecting: 'Connecting…',
   live: 'Live',
-  paused: 'Paused',
+  paused: 'Paused: press the button again to resume',
   reconnecting: 'Reconnecting…',
 };
 
