@@ -1,6 +1,7 @@
 /**
  * File errors of the command line in words: "cannot read nameplate file
- * x.json: no such file", never a bare ENOENT, EACCES or EISDIR.
+ * x.json: no such file", never a bare ENOENT, EACCES or EISDIR. The same for
+ * a connection to a database server (ECONNREFUSED and its kin).
  */
 
 /** The system's error codes a user meets with files, in words. */
@@ -25,6 +26,29 @@ const WORDS: Record<string, string> = {
   ENXIO: 'no such device',
   ENODEV: 'no such device',
 };
+
+/** Connection errors, in words; `at` is the address the error names. */
+const NETWORK_WORDS: Record<string, (at: string) => string> = {
+  ECONNREFUSED: (at) => `connection refused${at ? ` at ${at}` : ''} (is the server running there?)`,
+  ENOTFOUND: (at) => `no such host${at ? ` ${at}` : ''}`,
+  EAI_AGAIN: (at) => `the host name${at ? ` ${at}` : ''} could not be looked up now`,
+  ETIMEDOUT: (at) => `no answer${at ? ` from ${at}` : ''} (timed out)`,
+  EHOSTUNREACH: (at) => `no route to the host${at ? ` ${at}` : ''}`,
+  ENETUNREACH: (at) => `the network${at ? ` of ${at}` : ''} is unreachable`,
+  ECONNRESET: (at) => `the connection${at ? ` to ${at}` : ''} was closed by the other side`,
+};
+
+/**
+ * `message` with a connection error of `cause` in words: "cannot prepare the
+ * database at …: connect ECONNREFUSED 127.0.0.1:1" → "…: connection refused
+ * at 127.0.0.1:1 (is the server running there?)". Other messages unchanged.
+ */
+export function withNetworkWords(message: string, cause: unknown): string {
+  const e = cause as (NodeJS.ErrnoException & { address?: string; port?: number; hostname?: string }) | undefined;
+  if (!e || typeof e.code !== 'string' || !NETWORK_WORDS[e.code] || !(cause instanceof Error) || !message.includes(e.message)) return message;
+  const at = e.hostname ?? (e.address ? `${e.address}${e.port ? `:${e.port}` : ''}` : (/\s(\S+:\d+)$/.exec(e.message)?.[1] ?? ''));
+  return message.replace(e.message, NETWORK_WORDS[e.code]!(at));
+}
 
 /** A Node.js system error about a file (it carries a code such as ENOENT). */
 export function isFileError(error: unknown): error is NodeJS.ErrnoException {

@@ -6,6 +6,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
@@ -14,7 +15,7 @@ import { afterAll, describe, expect, it, vi } from 'vitest';
 import { isIanaTimeZone } from '../contract/nameplate';
 import { TEST_NAMEPLATE } from '../../test/support/synthetic-unit';
 import { parseTimeOption } from './export';
-import { describeFileError, fileErrorWords } from './file-errors';
+import { describeFileError, fileErrorWords, withNetworkWords } from './file-errors';
 import { COMMAND_HELP, HELP_WIDTH, commandHelpText, helpText, wrap } from './help';
 import { COMMANDS, helpOf, main, type CliIo } from './main';
 
@@ -159,6 +160,24 @@ describe('file errors in words', () => {
     const r = spawnSync(process.execPath, [fileURLToPath(new URL('../../bin/millrace.mjs', import.meta.url)), 'export', '--unit', 'a/b'], { env, encoding: 'utf8' });
     expect(r.status).toBe(2);
     expect(r.stderr).toBe(`millrace export: cannot create folder ${join(blocker, 'data')}: a file of that name is in the way\n`);
+  });
+
+  it('says a refused database connection in words', async () => {
+    const port = await new Promise<number>((resolve) => {
+      const server = createServer().listen(0, '127.0.0.1', () => {
+        const p = (server.address() as { port: number }).port;
+        server.close(() => resolve(p));
+      });
+    });
+    const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: `postgres://postgres@127.0.0.1:${port}/nothing` };
+    const r = spawnSync(process.execPath, [fileURLToPath(new URL('../../bin/millrace.mjs', import.meta.url)), 'export', '--unit', 'a/b'], { env, encoding: 'utf8' });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toContain(`connection refused at 127.0.0.1:${port} (is the server running there?)`);
+    expect(r.stderr).not.toMatch(bareCode);
+    expect(withNetworkWords('x: getaddrinfo ENOTFOUND db.example', Object.assign(new Error('getaddrinfo ENOTFOUND db.example'), { code: 'ENOTFOUND', hostname: 'db.example' }))).toBe(
+      'x: no such host db.example',
+    );
+    expect(withNetworkWords('unrelated', new Error('other'))).toBe('unrelated');
   });
 
   it('puts the codes a user meets in words, and an unlisted one without its code', () => {

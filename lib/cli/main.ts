@@ -3,7 +3,7 @@
  * module and exports `run(args, io): Promise<number>` returning the exit status.
  */
 import { AppError } from '../errors/app-error';
-import { describeFileError, isFileError } from './file-errors';
+import { describeFileError, isFileError, withNetworkWords } from './file-errors';
 import { COMMAND_HELP, commandHelpText, helpText } from './help';
 
 export { helpText } from './help';
@@ -60,7 +60,7 @@ export async function main(args: readonly string[], io: CliIo = { stdout: proces
   } catch (error) {
     if (error instanceof AppError && error.expose) {
       const hint = error.code === 'bad-input:cli-usage' ? `\n(npx millrace ${name} --help lists its options)` : '';
-      io.stderr.write(`millrace ${name}: ${error.message}${hint}\n`);
+      io.stderr.write(`millrace ${name}: ${withNetworkWords(error.message, error.cause)}${hint}\n`);
       return 2;
     }
     // A file error that no command put in words (EACCES on a folder, ENOSPC ...): still in words.
