@@ -2,8 +2,8 @@
  * What the fleet and site screens read, one function a screen: this process's
  * database, the viewer of the request, and the queries of lib/fleet/queries.ts.
  */
-import { getDatabase } from '../../db/client';
-import { canEditSetup, currentViewer, siteFilter } from '../auth/viewer';
+import { getDatabase, type Db } from '../../db/client';
+import { canEditSetup, currentViewer, siteFilter, type Viewer } from '../auth/viewer';
 import { getConfig } from '../config/env';
 import { getComponentState } from '../server/registry';
 import { getFleetSites, getQuarantineSummary, getSiteView, type FleetSite, type QuarantineSummary, type SiteView } from './queries';
@@ -22,11 +22,14 @@ export interface FleetScreen {
   readonly demo?: { status: string; phase?: string };
 }
 
-/** Every site the viewer sees, worst first, with what needs attention. */
+/** Every site the viewer sees, worst first, with what needs attention (this process's database, this request's viewer). */
 export async function loadFleetScreen(): Promise<FleetScreen> {
   const { db } = await getDatabase();
-  const viewer = await currentViewer();
-  const nowMs = Date.now();
+  return readFleetScreen({ db, viewer: await currentViewer(), nowMs: Date.now() });
+}
+
+/** The fleet screen's data; the bench times exactly this. */
+export async function readFleetScreen({ db, viewer, nowMs }: { db: Db; viewer: Viewer; nowMs: number }): Promise<FleetScreen> {
   const seesAll = siteFilter(viewer) === undefined;
   const [sites, quarantine] = await Promise.all([getFleetSites({ db, viewer, nowMs }), seesAll ? getQuarantineSummary({ db }) : undefined]);
   const demo = (await getComponentState('demo')) as { status: string; phase?: string } | undefined;
@@ -53,8 +56,23 @@ export interface SiteScreen {
 /** One site's table for the viewer; undefined when there is no such site or the viewer may not see it. */
 export async function loadSiteScreen(siteId: string, search: Record<string, string | string[] | undefined>): Promise<SiteScreen | undefined> {
   const { db } = await getDatabase();
-  const viewer = await currentViewer();
-  const nowMs = Date.now();
+  return readSiteScreen({ db, viewer: await currentViewer(), siteId, search, nowMs: Date.now() });
+}
+
+/** The site screen's data; the bench times exactly this. */
+export async function readSiteScreen({
+  db,
+  viewer,
+  siteId,
+  search,
+  nowMs,
+}: {
+  db: Db;
+  viewer: Viewer;
+  siteId: string;
+  search: Record<string, string | string[] | undefined>;
+  nowMs: number;
+}): Promise<SiteScreen | undefined> {
   const site = await getSiteView({ db, viewer, siteId, nowMs });
   if (site === undefined) return undefined;
   const { params, problems } = parseSiteTableParams(search);

@@ -3,8 +3,8 @@
  * against speed), its Ke history and trend, and the time series of the range asked.
  */
 import { z } from 'zod';
-import { getDatabase } from '../../db/client';
-import { currentViewer } from '../auth/viewer';
+import { getDatabase, type Db } from '../../db/client';
+import { currentViewer, type Viewer } from '../auth/viewer';
 import { SLUG } from '../contract/nameplate';
 import {
   getUnitEmfView,
@@ -39,8 +39,25 @@ export const DEFAULT_RANGE: SeriesRange = '6h';
 export async function loadUnitScreen(siteId: string, unitId: string, rangeParam: string | string[] | undefined): Promise<UnitScreen | undefined> {
   if (!SLUG.test(siteId) || !SLUG.test(unitId)) return undefined;
   const { db } = await getDatabase();
-  const viewer = await currentViewer();
-  const nowMs = Date.now();
+  return readUnitScreen({ db, viewer: await currentViewer(), siteId, unitId, rangeParam, nowMs: Date.now() });
+}
+
+/** The unit screen's data; the bench times exactly this. */
+export async function readUnitScreen({
+  db,
+  viewer,
+  siteId,
+  unitId,
+  rangeParam,
+  nowMs,
+}: {
+  db: Db;
+  viewer: Viewer;
+  siteId: string;
+  unitId: string;
+  rangeParam: string | string[] | undefined;
+  nowMs: number;
+}): Promise<UnitScreen | undefined> {
   const view = await getUnitView({ db, viewer, siteId, unitId, nowMs });
   if (view === undefined) return undefined;
   const raw = Array.isArray(rangeParam) ? rangeParam[0] : rangeParam;
