@@ -225,3 +225,22 @@ describe('GET /api/live: the stream', () => {
     expect(hub.openStreams()).toBe(0);
   });
 });
+
+describe('GET /api/live: the database out of reach', () => {
+  it('answers 503 with Retry-After instead of an error page', async () => {
+    const g = globalThis as typeof globalThis & { __millraceDatabase?: Promise<unknown> };
+    const kept = g.__millraceDatabase;
+    const down = Promise.reject(new Error('connection refused'));
+    down.catch(() => {});
+    g.__millraceDatabase = down;
+    try {
+      const res = await GET(new Request(`http://localhost/api/live?site=${w1.siteId}`));
+      expect(res.status).toBe(503);
+      expect(Number(res.headers.get('retry-after'))).toBeGreaterThan(0);
+      expect(((await res.json()) as { error: { code: string } }).error.code).toBe('unavailable:live');
+      expect(hub.openStreams()).toBe(0);
+    } finally {
+      g.__millraceDatabase = kept;
+    }
+  });
+});

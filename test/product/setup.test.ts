@@ -62,6 +62,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     await page.click('button[type=submit]');
     await page.waitForURL(`**/setup/sites/${site.id}?saved=created`);
     await expect(page.locator('[role=status]').first().textContent()).resolves.toContain('Site added');
+    await shoot('setup-site-edit');
   });
 
   it('refuses odd poles with the message beside the field, keeps what was typed, then saves the corrected unit', async () => {
@@ -107,6 +108,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     fleet.units[1]!.poles = 7;
     const before = await fleetNow();
     await page.goto(`${product.url}/setup/import`);
+    await shoot('setup-import');
     await page.setInputFiles('#fleet-file', { name: 'FLEET.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(fleet)) });
     await page.click('button[value=import]');
     const entry = page.locator('[data-entry="units[1]"]');

@@ -26,9 +26,17 @@ export async function GET(request: Request) {
   if (!parsed.success) return error(400, 'bad-input:live', parsed.error.issues[0]!.message);
   const { site, unit } = parsed.data;
 
-  const handle = await getDatabase();
-  await ensureLiveListener(handle);
-  const scope = await getLiveScope({ db: handle.db, viewer: await currentViewer(), siteId: site, unitId: unit });
+  let scope;
+  try {
+    const handle = await getDatabase();
+    await ensureLiveListener(handle);
+    scope = await getLiveScope({ db: handle.db, viewer: await currentViewer(), siteId: site, unitId: unit });
+  } catch {
+    // The page keeps what it shows and tries again (LiveUpdates retries a refused stream).
+    return error(503, 'unavailable:live', `live updates are unavailable: the database cannot be reached; try again in ${RETRY_AFTER_S} s`, {
+      'Retry-After': String(RETRY_AFTER_S),
+    });
+  }
   if (!scope) return error(404, 'not-found:live', unit ? `no unit "${unit}" on site "${site}"` : `no site "${site}"`);
 
   const hub = getLiveHub();

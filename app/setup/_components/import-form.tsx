@@ -73,15 +73,6 @@ export function ImportForm({ action, maxBytes }: { action: Action; maxBytes: num
         </div>
       </form>
 
-      {report?.ok && !applied && state.checkedText ? (
-        <form action={formAction} className={styles.actions}>
-          <input type="hidden" name="fleetText" value={state.checkedText} />
-          <input type="hidden" name="fileName" value={state.fileName ?? 'FLEET.json'} />
-          <button type="submit" name="intent" value="import" className={styles.primary} disabled={pending}>
-            Import the checked {state.fileName ?? 'file'}
-          </button>
-        </form>
-      ) : null}
       <div ref={resultRef} tabIndex={-1} aria-live="polite" className={setup.result}>
         {report ? (
           <section className="panel" aria-labelledby="import-result">
@@ -92,6 +83,15 @@ export function ImportForm({ action, maxBytes }: { action: Action; maxBytes: num
                   ? `${state.fileName} is valid: nothing was changed yet. Import it to make the changes below.`
                   : `${state.fileName}: ${report.problems.length} ${report.problems.length === 1 ? 'problem' : 'problems'}, nothing was changed.`}
             </h2>
+            {report.ok && !applied && state.checkedText ? (
+              <form action={formAction} className={`${styles.actions} ${setup.checkedImport}`}>
+                <input type="hidden" name="fleetText" value={state.checkedText} />
+                <input type="hidden" name="fileName" value={state.fileName ?? 'FLEET.json'} />
+                <button type="submit" name="intent" value="import" className={styles.primary} disabled={pending}>
+                  Import the checked {state.fileName ?? 'file'}
+                </button>
+              </form>
+            ) : null}
             {!report.ok ? (
               <p>
                 Correct {invalid.length === 1 ? 'the entry' : 'the entries'} marked invalid{report.fileProblems.length > 0 ? ' and the problems of the file' : ''}, then import the file again: an
