@@ -3,9 +3,10 @@
  * updates sites and units, all or nothing. Every problem is printed with its
  * path and the exit status is 2 when anything is invalid.
  */
+import { LOCAL_VIEWER } from '../auth/viewer';
 import { fleetSchema } from '../contract/nameplate';
 import { AppError } from '../errors/app-error';
-import { findFleetProblems, upsertFleet } from '../fleet/queries';
+import { importFleetFile } from '../setup/fleet-import';
 import { readJsonFile } from './json-file';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';
@@ -26,13 +27,15 @@ export async function run(args: string[], io: CliIo): Promise<number> {
   }
   const handle = await openCliDatabase();
   try {
-    const problems = await findFleetProblems({ db: handle.db, fleet: parsed.value });
-    if (problems.length > 0) {
+    // The same check and import as the setup screen's (whoever runs the command may change everything).
+    const report = await importFleetFile({ db: handle.db, viewer: LOCAL_VIEWER, raw: parsed.value, apply: true });
+    const { problems } = report;
+    if (!report.ok || !report.applied) {
       io.stderr.write(`${file}: ${problems.length} problem${problems.length > 1 ? 's' : ''}, nothing was changed\n`);
       for (const problem of problems) io.stderr.write(`  ${problem}\n`);
       return 2;
     }
-    const result = await upsertFleet({ db: handle.db, fleet: parsed.value });
+    const result = report.applied;
     io.stdout.write(
       `${file}: sites ${result.sitesCreated} added, ${result.sitesUpdated} updated; ` +
         `units ${result.unitsCreated} added, ${result.unitsUpdated} updated (${handle.location})\n`,
