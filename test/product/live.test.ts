@@ -101,6 +101,29 @@ describe.skipIf(skipUnless(chromium, 'live updates in a browser'))('live updates
     await expect(page.evaluate(() => (window as unknown as { stillHere?: boolean }).stillHere)).resolves.toBe(true);
   });
 
+  it('reads the page again at most once a second however fast events come', async () => {
+    await page.waitForSelector('[data-live-status="live"]', { timeout: 10_000 });
+    const refreshes: number[] = [];
+    const onRequest = (request: { headers(): Record<string, string> }) => {
+      // router.refresh() asks the server for the page's components (an RSC request).
+      if (request.headers()['rsc'] === '1') refreshes.push(Date.now());
+    };
+    page.on('request', onRequest);
+    const last = Date.now() - 100;
+    for (let i = 0; i < 12; i++) {
+      await publish(last - (12 - i) * 1000);
+      await new Promise((r) => setTimeout(r, 150));
+    }
+    await publish(last);
+    await page.waitForSelector(`time[datetime="${new Date(last).toISOString()}"]`, { timeout: 5000 });
+    await page.waitForTimeout(1500);
+    page.off('request', onRequest);
+    expect(refreshes.length).toBeGreaterThanOrEqual(1);
+    const gaps = refreshes.slice(1).map((t, i) => t - refreshes[i]!);
+    process.stdout.write(`live: ${refreshes.length} page reads for 13 messages over ${Date.now() - refreshes[0]!} ms, gaps ${gaps.join(', ')} ms\n`);
+    for (const gap of gaps) expect(gap).toBeGreaterThanOrEqual(900);
+  });
+
   async function shootLive() {
     const sideways = await screenshots(page, 'live-unit-paused');
     expect(sideways).toEqual([]);
