@@ -25,7 +25,7 @@ export const LOCAL_VIEWER: Viewer = Object.freeze({ id: 'local', role: 'admin', 
 
 /**
  * Whether the viewer may see the site.
- * @example canSeeSite(LOCAL_VIEWER, 'north-ridge') // true
+ * @example canSeeSite(LOCAL_VIEWER, 'thrennow-isk') // true
  */
 export function canSeeSite(viewer: Viewer, siteId: string): boolean {
   return viewer.siteIds === 'all' || viewer.siteIds.includes(siteId);

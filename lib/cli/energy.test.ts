@@ -12,7 +12,7 @@ const MIN = 60_000;
 
 const windPlate = {
   id: 'knoll-2',
-  siteId: 'heather-moor',
+  siteId: 'vennoral-drusk',
   name: 'Knoll 2',
   kind: 'wind',
   ratedKw: 10,
@@ -35,7 +35,7 @@ const windPlate = {
 
 const hydroPlate = {
   id: 'weir-1',
-  siteId: 'becks-mill',
+  siteId: 'yantrevo-pellik',
   kind: 'hydro',
   ratedKw: 40,
   ratedRpm: 750,

@@ -68,8 +68,8 @@ describe('presence payloads', () => {
 
 describe('unit topics (contract, section 3)', () => {
   it('splits site and unit and refuses ids that are not slugs', () => {
-    expect(parseUnitTopic('millrace/north-ridge/wt-03/telemetry')).toEqual({ ok: true, kind: 'telemetry', siteId: 'north-ridge', unitId: 'wt-03' });
-    expect(parseUnitTopic('millrace/north-ridge/wt-03/presence')).toMatchObject({ ok: true, kind: 'presence' });
+    expect(parseUnitTopic('millrace/thrennow-isk/wt-03/telemetry')).toEqual({ ok: true, kind: 'telemetry', siteId: 'thrennow-isk', unitId: 'wt-03' });
+    expect(parseUnitTopic('millrace/thrennow-isk/wt-03/presence')).toMatchObject({ ok: true, kind: 'presence' });
     expect(parseUnitTopic('millrace/North/wt-03/telemetry')).toMatchObject({ ok: false, reason: expect.stringMatching(/site id "North"/) });
     expect(parseUnitTopic('other/a/b/telemetry').ok).toBe(false);
   });

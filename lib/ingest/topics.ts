@@ -29,7 +29,7 @@ export type UnitTopic =
 /**
  * Splits a unit topic into its site and unit. A topic the subscriptions let
  * through but whose ids are not slugs comes back with a reason.
- * @example parseUnitTopic('millrace/north-ridge/wt-03/telemetry') // { ok: true, kind: 'telemetry', siteId: 'north-ridge', unitId: 'wt-03' }
+ * @example parseUnitTopic('millrace/thrennow-isk/wt-03/telemetry') // { ok: true, kind: 'telemetry', siteId: 'thrennow-isk', unitId: 'wt-03' }
  */
 export function parseUnitTopic(topic: string): UnitTopic {
   const parts = topic.split('/');

@@ -34,8 +34,8 @@ const UNITS: ReadonlyArray<{ id: string; options: SyntheticOptions; verdict: str
 ];
 
 const fleet = fleetSchema.parse({
-  sites: [{ id: 'lantern-moor', name: 'Lantern Moor', timezone: 'Europe/Oslo' }],
-  units: [...UNITS.map((u) => ({ ...TEST_NAMEPLATE, id: u.id, siteId: 'lantern-moor' })), { ...TEST_NAMEPLATE, id: 'lv-silent', siteId: 'lantern-moor' }],
+  sites: [{ id: 'quessarin-obb', name: 'Quessarin Obb', timezone: 'Europe/Oslo' }],
+  units: [...UNITS.map((u) => ({ ...TEST_NAMEPLATE, id: u.id, siteId: 'quessarin-obb' })), { ...TEST_NAMEPLATE, id: 'lv-silent', siteId: 'quessarin-obb' }],
 });
 
 let t: TestDatabase;

@@ -100,7 +100,7 @@ describe('embedded database folder', () => {
 
   it('persists across opens, and a second process is refused while one holds it', async () => {
     const first = await openDatabase({ dataDir: dir });
-    await first.db.execute(sql`insert into sites (id, name, timezone) values ('tarn-edge', 'Tarn Edge', 'Europe/Oslo')`);
+    await first.db.execute(sql`insert into sites (id, name, timezone) values ('malvessik-orn', 'Malvessik Orn', 'Europe/Oslo')`);
     const script = `
       import { openDatabase } from ${JSON.stringify(join(process.cwd(), 'db/client.ts'))};
       try { await openDatabase({ dataDir: ${JSON.stringify(dir)} }); console.log('opened'); }
@@ -112,7 +112,7 @@ describe('embedded database folder', () => {
 
     const again = await openDatabase({ dataDir: dir });
     const rows = rowsOf<{ name: string }>(await again.db.execute(sql`select name from sites`));
-    expect(rows.map((r) => r.name)).toEqual(['Tarn Edge']);
+    expect(rows.map((r) => r.name)).toEqual(['Malvessik Orn']);
     await again.close();
   });
 });

@@ -10,10 +10,10 @@ import { createPostgresDatabase, realDatabaseUrl } from '../support/backend';
 
 // The contract's section 4 fixes this command: all or nothing, every problem
 // printed with its path, exit status 2. The fleet below is invented.
-const site = { id: 'heddle-moss', name: 'Heddle Moss', timezone: 'Europe/Oslo' };
+const site = { id: 'ostrimmel-vay', name: 'Ostrimmel Vay', timezone: 'Europe/Oslo' };
 const windUnit = {
   id: 'hm-w1',
-  siteId: 'heddle-moss',
+  siteId: 'ostrimmel-vay',
   kind: 'wind',
   ratedKw: 6,
   ratedRpm: 280,
@@ -33,7 +33,7 @@ const windUnit = {
 };
 const hydroUnit = {
   id: 'hm-h1',
-  siteId: 'heddle-moss',
+  siteId: 'ostrimmel-vay',
   kind: 'hydro',
   ratedKw: 15,
   ratedRpm: 750,
