@@ -2,3 +2,4 @@ export * from './fleet';
 export * from './telemetry';
 export * from './health';
 export * from './alerts';
+export * from './devices';
