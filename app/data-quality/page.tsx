@@ -108,11 +108,15 @@ export default async function DataQualityPage({ searchParams }: { searchParams: 
                 <caption className="visually-hidden">Telemetry set aside in the last 24 hours, by unit, most first</caption>
                 <thead>
                   <tr>
-                    <th scope="col">Unit</th>
-                    <th scope="col" className="num">
+                    <th scope="col" className={styles.unitCell}>
+                      Unit
+                    </th>
+                    <th scope="col" className={`num ${styles.nowrap}`}>
                       Set aside
                     </th>
-                    <th scope="col">Latest</th>
+                    <th scope="col" className={styles.nowrap}>
+                      Latest
+                    </th>
                     <th scope="col">Latest reason</th>
                   </tr>
                 </thead>
@@ -133,7 +137,7 @@ export default async function DataQualityPage({ searchParams }: { searchParams: 
                       <td className="num" data-label="Set aside">
                         {u.count.toLocaleString('en-GB')}
                       </td>
-                      <td data-label="Latest">
+                      <td data-label="Latest" className={styles.nowrap}>
                         <LocalTime time={u.lastAt} timeZone={(u.siteId && zoneOf.get(u.siteId)) || 'UTC'} />
                       </td>
                       <td data-label="Latest reason">{u.lastReason}</td>
