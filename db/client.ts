@@ -77,7 +77,9 @@ export function redactUrl(url: string): string {
 async function openPostgres(url: string, maxConnections: number): Promise<DatabaseHandle> {
   const { default: postgresFactory } = await import('postgres');
   const { drizzle } = await import('drizzle-orm/postgres-js');
-  const sql = postgresFactory(url, { max: maxConnections, onnotice: () => {}, connect_timeout: 10 });
+  // JIT off: this pool serves short reads of the screens, where compiling a plan
+  // costs more than it saves (measured: the fleet query 96 ms with JIT, 30 ms without).
+  const sql = postgresFactory(url, { max: maxConnections, onnotice: () => {}, connect_timeout: 10, connection: { jit: 'off' } });
   const db = drizzle(sql, { schema, casing: 'snake_case' }) as unknown as Db;
   return { db, backend: 'postgres', sql, url, location: redactUrl(url), close: () => sql.end({ timeout: 5 }) };
 }

@@ -9,7 +9,7 @@ import { and, eq, sql } from 'drizzle-orm';
 import { rowsOf, type Db } from '../../db/client';
 import { sites, units, unitHealth, unitStatus, type SiteRow, type StoredFinding, type UnitRow } from '../../db/schema';
 import { canSeeSite, type Viewer } from '../auth/viewer';
-import { downsampleSeries, samplePoint, thinEvenly, DEFAULT_MAX_POINTS, type SeriesBucket, type SeriesPoint } from '../charts/downsample';
+import { downsampleSeries, thinEvenly, DEFAULT_MAX_POINTS, type SeriesBucket, type SeriesPoint } from '../charts/downsample';
 import type { Nameplate } from '../contract/nameplate';
 import type { DiagnosisNameplate } from '../diagnosis/diagnose';
 import { resolveLimits, type ResolvedLimits } from '../diagnosis/limits';
@@ -236,32 +236,6 @@ export interface UnitSeries {
   readonly series: Partial<Record<SeriesField, SeriesBucket[]>>;
 }
 
-interface RollupRow {
-  t: number | string;
-  samples: number;
-  rpm_min: number | null;
-  rpm_max: number | null;
-  rpm_sum: number | null;
-  vll_min: number | null;
-  vll_max: number | null;
-  vll_sum: number | null;
-  amps_min: number | null;
-  amps_max: number | null;
-  amps_sum: number | null;
-  amps_count: number;
-  kw_min: number | null;
-  kw_max: number | null;
-  kw_sum: number | null;
-  kw_count: number;
-  stator_c_min: number | null;
-  stator_c_max: number | null;
-  stator_c_sum: number | null;
-  stator_c_count: number;
-  resource_min: number | null;
-  resource_max: number | null;
-  resource_sum: number | null;
-  resource_count: number;
-}
 
 /**
  * Speed, frequency, line voltages, currents, power and temperatures of one
@@ -291,70 +265,80 @@ export async function getUnitSeries({
   if (unitKey === undefined) return undefined;
   const fromMs = nowMs - spec.ms;
   const toMs = nowMs;
-  const series: UnitSeries['series'] = {};
-  const put = (field: SeriesField, points: SeriesPoint[]) => {
-    if (points.length > 0) series[field] = downsampleSeries(points, { fromMs, toMs, maxPoints });
-  };
-  if (spec.source === 'raw') {
-    const rows = await getRawWindow({ db, unitKey, fromMs, toMs });
-    const fields: Array<[SeriesField, keyof RawRow]> = [
-      ['rpm', 'rpm'],
-      ['hz', 'hz'],
-      ['vab', 'vab'],
-      ['vbc', 'vbc'],
-      ['vca', 'vca'],
-      ['ia', 'ia'],
-      ['ib', 'ib'],
-      ['ic', 'ic'],
-      ['kw', 'kw'],
-      ['statorC', 'stator_c'],
-      ['ambientC', 'ambient_c'],
-    ];
-    for (const [field, column] of fields) {
-      const points: SeriesPoint[] = [];
-      for (const r of rows) {
-        const p = samplePoint(Number(r.ts_ms), r[column] === null ? null : Number(r[column]));
-        if (p) points.push(p);
-      }
-      put(field, points);
-    }
-    const resource: SeriesPoint[] = [];
-    for (const r of rows) {
-      const p = samplePoint(Number(r.ts_ms), r.wind_ms ?? r.flow_m3s);
-      if (p) resource.push(p);
-    }
-    put('resource', resource);
-    return { range, source: 'raw', fromMs, toMs, rowsRead: rows.length, series };
-  }
-  const table = spec.source === 'rollup-10m' ? sql`telemetry_rollups_10m` : sql`telemetry_rollups_daily`;
-  const rows = rowsOf<RollupRow>(
-    await db.execute(sql`
-      select (extract(epoch from bucket_start) * 1000)::float8 as t, samples,
-             rpm_min, rpm_max, rpm_sum, vll_min, vll_max, vll_sum,
-             amps_min, amps_max, amps_sum, amps_count, kw_min, kw_max, kw_sum, kw_count,
-             stator_c_min, stator_c_max, stator_c_sum, stator_c_count,
-             resource_min, resource_max, resource_sum, resource_count
-      from ${table}
-      where unit_key = ${unitKey} and bucket_start >= to_timestamp(${fromMs}::float8 / 1000.0) and bucket_start <= to_timestamp(${toMs}::float8 / 1000.0)
-      order by bucket_start`),
+  // Buckets of equal time in the database, so that at most `maxPoints` rows a
+  // series come back (a day of raw samples is 8,640 rows, 30 days of rollups
+  // 4,320); downsampleSeries then merges nothing and only guards the bound.
+  const widthMs = Math.max(1, Math.ceil(spec.ms / maxPoints));
+  const raw = spec.source === 'raw';
+  if (raw && toMs - fromMs > MAX_RAW_WINDOW_MS) throw new RangeError(`raw telemetry is read at most ${MAX_RAW_WINDOW_MS} ms at a time`);
+  const fields = raw ? RAW_SERIES_COLUMNS : ROLLUP_SERIES_COLUMNS;
+  const time = raw ? sql`ts` : sql`bucket_start`;
+  const table = raw ? sql`telemetry_samples` : spec.source === 'rollup-10m' ? sql`telemetry_rollups_10m` : sql`telemetry_rollups_daily`;
+  const aggregates = sql.join(
+    (fields as ReadonlyArray<readonly [SeriesField, string | RollupColumns]>).map(([field, c]) =>
+      typeof c === 'string'
+        ? sql.raw(`min(${c}) as "${field}_min", max(${c}) as "${field}_max", sum(${c}) as "${field}_sum", count(${c}) as "${field}_n"`)
+        : sql.raw(
+            `min(${c.min}) as "${field}_min", max(${c.max}) as "${field}_max", sum(${c.sum}) as "${field}_sum", ` +
+              `sum(case when ${c.sum} is null then 0 else ${c.count} end) as "${field}_n"`,
+          ),
+    ),
+    sql`, `,
   );
-  const rollupPoints = (min: keyof RollupRow, max: keyof RollupRow, total: keyof RollupRow, count: keyof RollupRow | 'samples') => {
+  const rows = rowsOf<Record<string, number | string | null>>(
+    await db.execute(sql`
+      select floor((extract(epoch from ${time}) * 1000 - ${fromMs}::float8) / ${widthMs}::float8) as b,
+             avg(extract(epoch from ${time}) * 1000)::float8 as t, count(*) as "rows", ${aggregates}
+      from ${table}
+      where unit_key = ${unitKey} and ${time} >= to_timestamp(${fromMs}::float8 / 1000.0) and ${time} <= to_timestamp(${toMs}::float8 / 1000.0)
+      group by 1
+      order by 1`),
+  );
+  const series: UnitSeries['series'] = {};
+  for (const [field] of fields) {
     const points: SeriesPoint[] = [];
     for (const r of rows) {
-      const n = Number(r[count]);
-      if (!(n > 0) || r[min] === null || r[max] === null || r[total] === null) continue;
-      points.push({ t: Number(r.t), min: Number(r[min]), max: Number(r[max]), sum: Number(r[total]), count: n });
+      const n = Number(r[`${field}_n`] ?? 0);
+      if (!(n > 0) || r[`${field}_min`] === null) continue;
+      points.push({ t: Number(r.t), min: Number(r[`${field}_min`]), max: Number(r[`${field}_max`]), sum: Number(r[`${field}_sum`]), count: n });
     }
-    return points;
-  };
-  put('rpm', rollupPoints('rpm_min', 'rpm_max', 'rpm_sum', 'samples'));
-  put('vll', rollupPoints('vll_min', 'vll_max', 'vll_sum', 'samples'));
-  put('amps', rollupPoints('amps_min', 'amps_max', 'amps_sum', 'amps_count'));
-  put('kw', rollupPoints('kw_min', 'kw_max', 'kw_sum', 'kw_count'));
-  put('statorC', rollupPoints('stator_c_min', 'stator_c_max', 'stator_c_sum', 'stator_c_count'));
-  put('resource', rollupPoints('resource_min', 'resource_max', 'resource_sum', 'resource_count'));
-  return { range, source: spec.source, fromMs, toMs, rowsRead: rows.length, series };
+    if (points.length > 0) series[field] = downsampleSeries(points, { fromMs, toMs, maxPoints });
+  }
+  const rowsRead = rows.reduce((n, r) => n + Number(r.rows), 0);
+  return { range, source: spec.source, fromMs, toMs, rowsRead, series };
 }
+
+/** Raw sample columns of each series field (the resource is wind speed or water flow, whichever the unit sends). */
+const RAW_SERIES_COLUMNS: ReadonlyArray<readonly [SeriesField, string]> = [
+  ['rpm', 'rpm'],
+  ['hz', 'hz'],
+  ['vab', 'vab'],
+  ['vbc', 'vbc'],
+  ['vca', 'vca'],
+  ['ia', 'ia'],
+  ['ib', 'ib'],
+  ['ic', 'ic'],
+  ['kw', 'kw'],
+  ['statorC', 'stator_c'],
+  ['ambientC', 'ambient_c'],
+  ['resource', 'coalesce(wind_ms, flow_m3s)'],
+];
+
+/** Rollup columns of each series field: min, max, sum and the count the sum is over. */
+interface RollupColumns {
+  readonly min: string;
+  readonly max: string;
+  readonly sum: string;
+  readonly count: string;
+}
+const ROLLUP_SERIES_COLUMNS: ReadonlyArray<readonly [SeriesField, RollupColumns]> = [
+  ['rpm', { min: 'rpm_min', max: 'rpm_max', sum: 'rpm_sum', count: 'samples' }],
+  ['vll', { min: 'vll_min', max: 'vll_max', sum: 'vll_sum', count: 'samples' }],
+  ['amps', { min: 'amps_min', max: 'amps_max', sum: 'amps_sum', count: 'amps_count' }],
+  ['kw', { min: 'kw_min', max: 'kw_max', sum: 'kw_sum', count: 'kw_count' }],
+  ['statorC', { min: 'stator_c_min', max: 'stator_c_max', sum: 'stator_c_sum', count: 'stator_c_count' }],
+  ['resource', { min: 'resource_min', max: 'resource_max', sum: 'resource_sum', count: 'resource_count' }],
+];
 
 /** The unit's key when the viewer may see it on that site. */
 async function getVisibleUnitKey({ db, viewer, siteId, unitId }: { db: Db; viewer: Viewer; siteId: string; unitId: string }): Promise<number | undefined> {
