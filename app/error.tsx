@@ -6,10 +6,12 @@ export default function PageError({ error, reset }: { error: Error & { digest?: 
     <section className="error-box" role="alert">
       <h1>This page could not be shown</h1>
       <p>
-        Something went wrong while reading the data for this page. The monitoring itself keeps running: samples are still stored and
-        diagnosed.
+        Something went wrong while reading the data for this page (often the database was busy or out of reach for a moment).
       </p>
-      <p>What to do: try again in a moment. If it keeps failing, check that the database is reachable on the health page, and tell whoever runs millrace{error.digest ? <> the reference <code>{error.digest}</code></> : null}.</p>
+      <p>
+        What to do: try again in a moment. If it keeps failing, look at the health of the parts (link below) and tell whoever runs
+        millrace{error.digest ? <>, quoting the reference <code>{error.digest}</code></> : null}.
+      </p>
       <p>
         <button type="button" onClick={() => reset()}>
           Try again

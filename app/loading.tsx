@@ -2,7 +2,7 @@
 export default function Loading() {
   return (
     <p className="loading" role="status">
-      Reading the latest state of the fleet…
+      Reading the latest data for this page…
     </p>
   );
 }
