@@ -109,6 +109,47 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
       DATABASE_NOTE,
     ],
   },
+  'device credentials': {
+    name: 'device credentials',
+    summary: "issue a unit's MQTT username and password, or rotate its password; shown once",
+    arguments: [{ name: 'SITE/UNIT', text: 'the unit, by its site id and unit id' }],
+    options: [{ flag: '--json', text: 'print { "username", "password" } instead of the readable text' }],
+    notes: [
+      'The username is SITE.UNIT; the password is 128 random bits, stored only as a ' +
+        'hash. Rotating cuts off a device connected to the embedded broker with the ' +
+        'old password at once. The device may publish only to ' +
+        'millrace/SITE/UNIT/telemetry and millrace/SITE/UNIT/presence.',
+      'On Mosquitto, run device export-broker-auth again and reload the broker.',
+      DATABASE_NOTE,
+    ],
+  },
+  'device ingester-credentials': {
+    name: 'device ingester-credentials',
+    summary: "issue the ingesters' MQTT account (millrace-ingest), or rotate its password; shown once",
+    options: [{ flag: '--json', text: 'print { "username", "password" } instead of the readable text' }],
+    notes: [
+      'Give it to each ingester as MQTT_USERNAME and MQTT_PASSWORD (in .env for ' +
+        'docker-compose). The account may read telemetry and presence of every unit ' +
+        'and publish nothing. The embedded broker of npm start does not need it: its ' +
+        'in-process ingester gets an account of its own at each start.',
+      DATABASE_NOTE,
+    ],
+  },
+  'device export-broker-auth': {
+    name: 'device export-broker-auth',
+    summary: "write Mosquitto's password file and ACL file from the accounts",
+    options: [{ flag: '--dir', value: 'DIR', required: true, text: 'folder to write passwords and acl in (made if missing)' }],
+    notes: [
+      'DIR/passwords (mode 0600) holds each account that is not revoked with its ' +
+        "stored hash, in Mosquitto's own format; DIR/acl (0644) lets each unit write " +
+        'only its own telemetry and presence topics and read nothing, and the ' +
+        "ingesters' account read every unit's telemetry and presence.",
+      'Point password_file and acl_file of mosquitto.conf at them, with ' +
+        'allow_anonymous false. Export again after adding units or issuing or ' +
+        'rotating credentials, then reload Mosquitto (SIGHUP) so it reads them.',
+      DATABASE_NOTE,
+    ],
+  },
 };
 
 /** The command-line's help option, listed in every command's help. */
@@ -194,7 +235,7 @@ export function helpText(): string {
   lines.push(
     '',
     ...wrap('Exit status: 0 when the command ran, 2 when it could not (a bad file, column or option).'),
-    ...wrap('Database commands (units import, export) use DATABASE_URL when it is set, else the embedded database in DATA_DIR (./data).'),
+    ...wrap('Database commands (units import, export, device) use DATABASE_URL when it is set, else the embedded database in DATA_DIR (./data).'),
     '',
   );
   return lines.join('\n');

@@ -21,6 +21,7 @@ export const COMMANDS: Record<string, () => Promise<CommandModule>> = {
   energy: () => import('./energy'),
   units: () => import('./units'),
   export: () => import('./export'),
+  device: () => import('./device'),
 };
 
 /** The help of `millrace <name> --help` (every sub-command of `units`, say); undefined for an unknown name. */

@@ -25,6 +25,12 @@ export const liveEventSchema = z.discriminatedUnion('type', [
     /** The verdict before this diagnosis; absent on a unit's first. */
     previousVerdict: z.string().max(64).optional(),
   }),
+  z.object({
+    /** A unit's MQTT password was rotated or revoked: the embedded broker disconnects its device (lib/devices). */
+    type: z.literal('device-credentials'),
+    siteId: slug,
+    unitId: slug,
+  }),
 ]);
 
 export type LiveEvent = z.infer<typeof liveEventSchema>;

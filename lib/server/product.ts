@@ -37,10 +37,26 @@ async function databaseComponent(handle: DatabaseHandle) {
 async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger, stack: Stoppable[]): Promise<void> {
   let brokerUrl = config.MQTT_URL;
   let mqtt5 = true;
+  // Broker credentials of the ingester: MQTT_USERNAME/MQTT_PASSWORD on an outside broker, an in-memory account on the embedded one.
+  let ingesterCredentials = { username: config.MQTT_USERNAME, password: config.MQTT_PASSWORD };
+  let embedded = false;
   if (brokerUrl === undefined) {
     const { startEmbeddedBroker } = await import('../broker/embedded');
-    const broker = await startEmbeddedBroker({ port: config.MQTT_PORT, log: log.child('broker') });
+    const { createBrokerAuthoriser, newLocalIngesterAccount } = await import('../devices/broker-auth');
+    const localIngester = newLocalIngesterAccount();
+    const broker = await startEmbeddedBroker({
+      port: config.MQTT_PORT,
+      log: log.child('broker'),
+      auth: createBrokerAuthoriser({ db: handle.db, localIngester }),
+    });
     stack.push({ name: 'broker', stop: () => broker.close() });
+    // A rotated or revoked device is cut off at once: the live feed carries the change (in-process, or NOTIFY from a command).
+    const unsubscribe = getLiveHub().subscribe(({ event }) => {
+      if (event.type === 'device-credentials') broker.disconnectUnit(event.siteId, event.unitId);
+    });
+    stack.push({ name: 'broker credentials', stop: async () => unsubscribe() });
+    ingesterCredentials = localIngester;
+    embedded = true;
     registerComponent('broker', { state: () => ({ status: 'ok', embedded: true, url: broker.url, clients: broker.clients() }) });
     brokerUrl = broker.url;
     mqtt5 = false;
@@ -63,8 +79,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     batchMs: config.INGEST_BATCH_MS,
     bufferSamples: config.INGEST_BUFFER_SAMPLES,
     retentionDays: config.RETENTION_DAYS,
-    username: config.MQTT_USERNAME,
-    password: config.MQTT_PASSWORD,
+    ...ingesterCredentials,
     log: log.child('ingest'),
   });
   stack.push({ name: 'ingester', stop: () => ingester.stop() });
@@ -81,7 +96,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   });
   stack.push({ name: 'diagnosis', stop: async () => diagnosis() });
 
-  if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack);
+  if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack, embedded);
   else registerComponent('demo', { state: () => ({ status: 'off', reason: 'DEMO=off' }) });
 }
 
@@ -111,14 +126,19 @@ async function liveComponent(handle: DatabaseHandle, log: Logger, stack: Stoppab
   });
 }
 
-async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: string, log: Logger, stack: Stoppable[]) {
+async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: string, log: Logger, stack: Stoppable[], embedded: boolean) {
   const { demoFleet } = await import('../simulate/demo-fleet');
   const { startSimulator, backfill } = await import('../simulate/simulator');
   const { upsertFleet } = await import('../fleet/queries');
   await upsertFleet({ db: handle.db, fleet: demoFleet });
   const simLog = log.child('demo');
   const hasHistory = await hasSamples(handle);
-  const credentials = { username: config.MQTT_USERNAME, password: config.MQTT_PASSWORD };
+  const credentials = {
+    username: config.MQTT_USERNAME,
+    password: config.MQTT_PASSWORD,
+    // On the embedded broker each demo unit signs in as itself, with credentials issued now the way an operator issues them.
+    ...(embedded ? { credentialsFor: await issueDemoCredentials(config, handle, demoFleet.units, simLog) } : {}),
+  };
   let phase = hasHistory ? 'live' : 'backfilling history';
   const simulator = await startSimulator({ brokerUrl, fleet: demoFleet, log: simLog, ...credentials });
   stack.push({ name: 'demo', stop: () => simulator.stop() });
@@ -135,6 +155,36 @@ async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: stri
       });
   }
 }
+
+/**
+ * Issues (rotates) each demo unit's device credentials through lib/devices, as
+ * the setup screen does, and writes them to DATA_DIR/demo-device-credentials.json
+ * (mode 0600), so that a person trying the demo can publish as a demo unit
+ * from outside (mosquitto_pub). Demo units only; rewritten at each start.
+ */
+async function issueDemoCredentials(config: Config, handle: DatabaseHandle, units: ReadonlyArray<{ siteId: string; id: string }>, log: Logger) {
+  const { issueDeviceCredentials } = await import('../devices/queries');
+  const { LOCAL_VIEWER } = await import('../auth/viewer');
+  const { mkdirSync, writeFileSync, chmodSync } = await import('node:fs');
+  const { join } = await import('node:path');
+  const issued = new Map<string, { username: string; password: string }>();
+  for (const unit of units) {
+    const result = await issueDeviceCredentials({ db: handle.db, viewer: LOCAL_VIEWER, siteId: unit.siteId, unitId: unit.id });
+    if (result.ok) issued.set(`${unit.siteId}/${unit.id}`, { username: result.username, password: result.password });
+  }
+  try {
+    mkdirSync(config.DATA_DIR, { recursive: true });
+    const file = join(config.DATA_DIR, DEMO_CREDENTIALS_FILE);
+    writeFileSync(file, `${JSON.stringify(Object.fromEntries(issued), null, 2)}\n`, { mode: 0o600 });
+    chmodSync(file, 0o600);
+  } catch (error) {
+    log.warn('could not write the demo units\' credentials file', { error });
+  }
+  return (siteId: string, unitId: string) => issued.get(`${siteId}/${unitId}`);
+}
+
+/** File in DATA_DIR with the demo units' MQTT usernames and passwords (embedded broker only). */
+export const DEMO_CREDENTIALS_FILE = 'demo-device-credentials.json';
 
 async function hasSamples(handle: DatabaseHandle): Promise<boolean> {
   const rows = rowsOf<{ has: boolean }>(await handle.db.execute(sql`select exists(select 1 from telemetry_samples) as has`));

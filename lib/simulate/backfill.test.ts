@@ -20,7 +20,7 @@ describe('backfill against the embedded broker', () => {
   let messages = 0;
 
   beforeAll(async () => {
-    broker = await startEmbeddedBroker({ port: await freePort() });
+    broker = await startEmbeddedBroker({ port: await freePort(), auth: 'open-for-tests' });
     watcher = await mqtt.connectAsync(broker.url, { clientId: 'test-history-watch', protocolVersion: 4, reconnectPeriod: 0 });
     watcher.on('message', (topic, payload) => {
       if (!topic.endsWith('/telemetry')) return;

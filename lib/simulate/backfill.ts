@@ -11,7 +11,7 @@
 import type { Logger } from '../log/logger';
 import { AppError } from '../errors/app-error';
 import { demoFleet } from './demo-fleet';
-import { UnitDevice, redactUrl } from './device';
+import { UnitDevice, redactUrl, type CredentialsFor } from './device';
 import { buildFleetModels, parseFleet, type FleetModelOptions } from './fleet-models';
 import type { PublishedSample } from './machine';
 
@@ -37,6 +37,8 @@ export interface BackfillOptions extends FleetModelOptions {
   endMs?: number | undefined;
   username?: string | undefined;
   password?: string | undefined;
+  /** Each unit's own credentials (a broker that checks who publishes where); else `username`/`password` for all. */
+  credentialsFor?: CredentialsFor | undefined;
   /** Client ids are `<prefix>-<unitId>-history`; default `millrace-sim`. */
   clientIdPrefix?: string | undefined;
   /** Stops the upload early (what was acknowledged stays written). */
@@ -99,8 +101,8 @@ export async function backfill(options: BackfillOptions): Promise<BackfillResult
         siteId: u.nameplate.siteId,
         unitId: u.nameplate.id,
         clientId: `${prefix}-${u.nameplate.id}-history`,
-        username: options.username,
-        password: options.password,
+        username: options.credentialsFor?.(u.nameplate.siteId, u.nameplate.id)?.username ?? options.username,
+        password: options.credentialsFor?.(u.nameplate.siteId, u.nameplate.id)?.password ?? options.password,
         log,
         presence: false,
       }),

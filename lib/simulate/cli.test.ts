@@ -59,7 +59,7 @@ describe('runSimulate', () => {
   const topics: string[] = [];
 
   beforeAll(async () => {
-    broker = await startEmbeddedBroker({ port: await freePort() });
+    broker = await startEmbeddedBroker({ port: await freePort(), auth: 'open-for-tests' });
     watcher = await mqtt.connectAsync(broker.url, { clientId: 'test-cli-watch', protocolVersion: 4, reconnectPeriod: 0 });
     watcher.on('message', (topic) => topics.push(topic));
     await watcher.subscribeAsync('millrace/#', { qos: 1 });

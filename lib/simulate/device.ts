@@ -49,6 +49,15 @@ export function connectionError(brokerUrl: string, error: unknown): AppError {
   return new AppError('unavailable', 'simulate', text, { cause: error, expose: true });
 }
 
+/** A unit's own MQTT username and password (lib/devices issues them). */
+export interface DeviceCredentials {
+  username: string;
+  password: string;
+}
+
+/** Gives each unit its own credentials; undefined falls back to the shared username and password. */
+export type CredentialsFor = (siteId: string, unitId: string) => DeviceCredentials | undefined;
+
 export interface DeviceOptions {
   brokerUrl: string;
   siteId: string;

@@ -41,7 +41,7 @@ describe('startSimulator against the embedded broker', () => {
   const clients: MqttClient[] = [];
 
   beforeAll(async () => {
-    broker = await startEmbeddedBroker({ port: await freePort() });
+    broker = await startEmbeddedBroker({ port: await freePort(), auth: 'open-for-tests' });
   });
   afterAll(async () => {
     await Promise.all(clients.map((c) => c.endAsync(true)));

@@ -8,7 +8,7 @@
 import type { Logger } from '../log/logger';
 import { AppError } from '../errors/app-error';
 import { demoFleet } from './demo-fleet';
-import { UnitDevice, redactUrl } from './device';
+import { UnitDevice, redactUrl, type CredentialsFor } from './device';
 import { liveOutage } from './faults';
 import { buildFleetModels, parseFleet, type FleetModelOptions, type SimulatedUnit } from './fleet-models';
 import type { PublishedSample } from './machine';
@@ -33,6 +33,8 @@ export interface SimulatorOptions extends FleetModelOptions {
   samplesPerMessage?: number | undefined;
   username?: string | undefined;
   password?: string | undefined;
+  /** Each unit's own credentials (a broker that checks who publishes where); else `username`/`password` for all. */
+  credentialsFor?: CredentialsFor | undefined;
   /** Client ids are `<prefix>-<unitId>`; default `millrace-sim`. */
   clientIdPrefix?: string | undefined;
 }
@@ -112,8 +114,8 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
       siteId: u.nameplate.siteId,
       unitId: u.nameplate.id,
       clientId: `${prefix}-${u.nameplate.id}`,
-      username: options.username,
-      password: options.password,
+      username: options.credentialsFor?.(u.nameplate.siteId, u.nameplate.id)?.username ?? options.username,
+      password: options.credentialsFor?.(u.nameplate.siteId, u.nameplate.id)?.password ?? options.password,
       log,
       presence: true,
     });

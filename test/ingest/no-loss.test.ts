@@ -254,7 +254,7 @@ describe('no loss on the embedded broker and database (aedes, PGlite)', { timeou
   // (lib/broker/embedded-persistence.test.ts). The error carries the ingester's counters, buffer and
   // connection.
   it('(a) the ingester is stopped without draining and started again in the process', async () => {
-    const broker = await startEmbeddedBroker({ port: await freePort() });
+    const broker = await startEmbeddedBroker({ port: await freePort(), auth: 'open-for-tests' });
     const handle = await openDatabase({ dataDir: 'memory://' });
     process.stdout.write(`no-loss: ${handle.location}, embedded aedes at ${broker.url}\n`);
     try {

@@ -128,7 +128,7 @@ export async function startTestBroker(): Promise<TestBroker> {
   if (realBrokerUrl) {
     return { url: realBrokerUrl, mqtt5: true, shareGroup, description: `MQTT 5 broker at ${realBrokerUrl}`, close: async () => {} };
   }
-  const broker = await startEmbeddedBroker({ port: await freePort() });
+  const broker = await startEmbeddedBroker({ port: await freePort(), auth: 'open-for-tests' });
   return { url: broker.url, mqtt5: false, shareGroup, description: `embedded aedes at ${broker.url}`, close: () => broker.close() };
 }
 

@@ -1,0 +1,123 @@
+/**
+ * `npx millrace device ...` (contract, section 4):
+ *
+ * - `device credentials SITE/UNIT [--json]` issues a unit's MQTT username and
+ *   password, or rotates the password; printed once (only a hash is kept).
+ * - `device ingester-credentials [--json]` the same for the ingesters' account
+ *   (`millrace-ingest`), which docker-compose gives the ingester as
+ *   MQTT_USERNAME / MQTT_PASSWORD.
+ * - `device export-broker-auth --dir DIR` writes DIR/passwords and DIR/acl
+ *   for Mosquitto.
+ *
+ * Whoever runs these may change everything (the local viewer), as with
+ * `units import`. A rotation is announced on the live feed (NOTIFY on
+ * PostgreSQL), so a running product's embedded broker cuts the device off.
+ */
+import { LOCAL_VIEWER } from '../auth/viewer';
+import { SLUG } from '../contract/nameplate';
+import { listBrokerAccounts, issueDeviceCredentials, issueIngesterCredentials } from '../devices/queries';
+import { writeBrokerAuthFiles } from '../devices/broker-files';
+import { AppError } from '../errors/app-error';
+import { createLivePublisher } from '../live/publisher';
+import { parseOptions } from './args';
+import { openCliDatabase } from './database';
+import type { CliIo } from './main';
+
+function parseUnit(value: string | undefined): { siteId: string; unitId: string } {
+  if (value === undefined) throw new AppError('bad-input', 'cli', 'device credentials: the unit is missing (SITE/UNIT)');
+  const [siteId, unitId, ...more] = value.split('/');
+  if (siteId === undefined || unitId === undefined || more.length > 0 || !SLUG.test(siteId) || !SLUG.test(unitId)) {
+    throw new AppError('bad-input', 'cli', `device credentials: expected SITE/UNIT (two ids of a-z, 0-9 and -), got "${value}"`);
+  }
+  return { siteId, unitId };
+}
+
+async function credentials(args: string[], io: CliIo): Promise<number> {
+  const { values, positionals } = parseOptions(args, { json: { type: 'boolean' } });
+  if (positionals.length > 1) throw new AppError('bad-input', 'cli', `device credentials: unexpected argument "${positionals[1]}"`);
+  const { siteId, unitId } = parseUnit(positionals[0]);
+  const handle = await openCliDatabase();
+  try {
+    const live = createLivePublisher({ handle });
+    const result = await issueDeviceCredentials({ db: handle.db, viewer: LOCAL_VIEWER, siteId, unitId, live });
+    await live.flush();
+    if (!result.ok) throw new AppError(result.reason === 'not-found' ? 'not-found' : 'bad-input', 'cli', `${result.message} (${handle.location}); register it first with units import`);
+    if (values.json) {
+      io.stdout.write(`${JSON.stringify({ username: result.username, password: result.password })}\n`);
+      return 0;
+    }
+    io.stdout.write(
+      `MQTT account of unit ${siteId}/${unitId} ${result.rotated ? 'rotated: the old password no longer works' : 'issued'}.\n` +
+        `Shown once: only a hash is kept.\n\n` +
+        `  username  ${result.username}\n  password  ${result.password}\n\n` +
+        `The device may publish to millrace/${siteId}/${unitId}/telemetry and .../presence only.\n` +
+        `On Mosquitto, export again (npx millrace device export-broker-auth --dir DIR) and reload it (SIGHUP).\n`,
+    );
+    return 0;
+  } finally {
+    await handle.close();
+  }
+}
+
+async function ingesterCredentials(args: string[], io: CliIo): Promise<number> {
+  const { values, positionals } = parseOptions(args, { json: { type: 'boolean' } });
+  if (positionals.length > 0) throw new AppError('bad-input', 'cli', `device ingester-credentials: unexpected argument "${positionals[0]}"`);
+  const handle = await openCliDatabase();
+  try {
+    const result = await issueIngesterCredentials({ db: handle.db });
+    if (values.json) {
+      io.stdout.write(`${JSON.stringify({ username: result.username, password: result.password })}\n`);
+      return 0;
+    }
+    io.stdout.write(
+      `MQTT account of the ingesters ${result.rotated ? 'rotated: the old password no longer works once exported' : 'issued'}.\n` +
+        `Shown once: only a hash is kept. Give it to every ingester (in .env for docker-compose):\n\n` +
+        `MQTT_USERNAME=${result.username}\nMQTT_PASSWORD=${result.password}\n\n` +
+        `Then export for Mosquitto (npx millrace device export-broker-auth --dir DIR) and reload it (SIGHUP).\n`,
+    );
+    return 0;
+  } finally {
+    await handle.close();
+  }
+}
+
+async function exportBrokerAuth(args: string[], io: CliIo): Promise<number> {
+  const { values, positionals } = parseOptions(args, { dir: { type: 'string', required: true } });
+  if (positionals.length > 0) throw new AppError('bad-input', 'cli', `device export-broker-auth: unexpected argument "${positionals[0]}"`);
+  const dir = values.dir!;
+  if (dir.trim() === '') throw new AppError('bad-input', 'cli', '--dir: expected a folder, got an empty value');
+  const handle = await openCliDatabase();
+  try {
+    const accounts = await listBrokerAccounts({ db: handle.db });
+    const { passwordFile, aclFile } = writeBrokerAuthFiles({ dir, accounts });
+    const devices = accounts.filter((a) => a.role === 'device').length;
+    const ingester = accounts.some((a) => a.role === 'ingester');
+    io.stdout.write(
+      `${passwordFile} and ${aclFile} written: ${devices} device${devices === 1 ? '' : 's'}` +
+        `${ingester ? ' and the ingesters\' account' : ''} (${handle.location}).\n` +
+        `Reload Mosquitto to read them (docker compose kill -s SIGHUP mosquitto).\n`,
+    );
+    if (!ingester) io.stderr.write('warning: no ingesters\' account yet, so no ingester can subscribe: run npx millrace device ingester-credentials, then export again\n');
+    return 0;
+  } finally {
+    await handle.close();
+  }
+}
+
+export async function run(args: string[], io: CliIo): Promise<number> {
+  const [sub, ...rest] = args;
+  switch (sub) {
+    case 'credentials':
+      return credentials(rest, io);
+    case 'ingester-credentials':
+      return ingesterCredentials(rest, io);
+    case 'export-broker-auth':
+      return exportBrokerAuth(rest, io);
+    default:
+      throw new AppError(
+        'bad-input',
+        'cli',
+        `expected "device credentials SITE/UNIT", "device ingester-credentials" or "device export-broker-auth --dir DIR", got "device ${args.join(' ')}"`,
+      );
+  }
+}
