@@ -3,7 +3,7 @@
  */
 import { asc, desc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { rowsOf, type Db } from '../../db/client';
-import { quarantine, sites, units, unitStatus, unitHealth, type SiteRow, type UnitRow } from '../../db/schema';
+import { quarantine, sites, units, type SiteRow, type UnitRow } from '../../db/schema';
 import type { Fleet, Nameplate } from '../contract/nameplate';
 import { canSeeSite, siteFilter, type Viewer } from '../auth/viewer';
 import { compareStates, OFFLINE_AFTER_MS, unitStateOf, UNIT_STATES, type UnitState, type UnitStateView } from './unit-state';
@@ -134,55 +134,6 @@ export async function getUnits({ db }: { db: Db }): Promise<UnitRow[]> {
 export async function getUnitById({ db, unitId }: { db: Db; unitId: string }): Promise<UnitRow | undefined> {
   const [row] = await db.select().from(units).where(eq(units.id, unitId)).limit(1);
   return row;
-}
-
-export interface FleetOverviewUnit {
-  id: string;
-  name: string | null;
-  kind: UnitRow['kind'];
-  ratedKw: number;
-  presence: 'online' | 'offline' | null;
-  lastSampleTs: Date | null;
-  verdict: string | null;
-  keRatio: number | null;
-  diagnosedAt: Date | null;
-}
-
-export interface FleetOverviewSite {
-  id: string;
-  name: string;
-  timezone: string;
-  units: FleetOverviewUnit[];
-}
-
-/** Sites with their units, presence and latest verdict: the fleet list of the home page. */
-export async function getFleetOverview({ db }: { db: Db }): Promise<FleetOverviewSite[]> {
-  const siteRows = await getSites({ db });
-  const unitRows = await db
-    .select({
-      id: units.id,
-      siteId: units.siteId,
-      name: units.name,
-      kind: units.kind,
-      ratedKw: units.ratedKw,
-      presence: unitStatus.presence,
-      lastSampleTs: unitStatus.lastSampleTs,
-      verdict: unitHealth.verdict,
-      keRatio: unitHealth.keRatio,
-      diagnosedAt: unitHealth.diagnosedAt,
-    })
-    .from(units)
-    .leftJoin(unitStatus, eq(unitStatus.unitKey, units.key))
-    .leftJoin(unitHealth, eq(unitHealth.unitKey, units.key))
-    .orderBy(asc(units.siteId), asc(units.id));
-  return siteRows.map((site) => ({
-    id: site.id,
-    name: site.name,
-    timezone: site.timezone,
-    units: unitRows
-      .filter((u) => u.siteId === site.id)
-      .map(({ siteId: _s, ...u }) => u),
-  }));
 }
 
 /** Counts of set-aside telemetry stop here: a device that floods the table must not make every page render scan it. */
