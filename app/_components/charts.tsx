@@ -9,7 +9,6 @@ import {
   Area,
   CartesianGrid,
   ComposedChart,
-  Legend,
   Line,
   ReferenceLine,
   ResponsiveContainer,
@@ -59,9 +58,8 @@ export function EmfScatter({
         <ComposedChart margin={{ top: 10, right: 16, bottom: 28, left: 8 }}>
           <CartesianGrid stroke="#e4e5e1" />
           <XAxis type="number" dataKey="rpm" domain={[0, Math.ceil(topRpm / 50) * 50]} tick={AXIS} label={{ value: 'Speed, rpm', position: 'insideBottom', offset: -16, fill: '#1b2429' }} />
-          <YAxis type="number" dataKey="v" domain={[0, 'auto']} tick={AXIS} width={60} label={{ value: 'Line voltage, V', angle: -90, position: 'insideLeft', fill: '#1b2429', dy: 50 }} />
+          <YAxis type="number" dataKey="v" domain={[0, 'auto']} tick={AXIS} width={66} label={{ value: 'Line voltage, V', angle: -90, position: 'insideLeft', fill: '#1b2429', style: { textAnchor: 'middle' } }} />
           <Tooltip formatter={(v) => `${Number(v).toFixed(0)} V`} labelFormatter={() => ''} />
-          <Legend verticalAlign="top" height={28} />
           <ReferenceLine
             className="nameplate-line"
             segment={[
@@ -120,9 +118,8 @@ export function KeTrendChart({
         <ComposedChart data={days} margin={{ top: 10, right: 16, bottom: 28, left: 8 }}>
           <CartesianGrid stroke="#e4e5e1" />
           <XAxis type="number" dataKey="t" scale="time" domain={[fromMs, toMs]} tickFormatter={timeTick(timeZone, toMs - fromMs)} tick={AXIS} label={{ value: 'Date (site time)', position: 'insideBottom', offset: -16, fill: '#1b2429' }} />
-          <YAxis type="number" domain={[Math.floor((yMin - 0.005) * 100) / 100, Math.ceil((yMax + 0.005) * 100) / 100]} tick={AXIS} width={60} tickFormatter={(v: number) => v.toFixed(2)} label={{ value: 'Ke ratio (of nameplate)', angle: -90, position: 'insideLeft', fill: '#1b2429', dy: 70 }} />
+          <YAxis type="number" domain={[Math.floor((yMin - 0.005) * 100) / 100, Math.ceil((yMax + 0.005) * 100) / 100]} tick={AXIS} width={66} tickFormatter={(v: number) => v.toFixed(2)} label={{ value: 'Ke ratio (of nameplate)', angle: -90, position: 'insideLeft', fill: '#1b2429', style: { textAnchor: 'middle' } }} />
           <Tooltip labelFormatter={fullTime(timeZone)} formatter={(v) => (Array.isArray(v) ? v.map((x) => Number(x).toFixed(3)).join('–') : Number(v).toFixed(3))} />
-          <Legend verticalAlign="top" height={28} />
           <ReferenceLine y={warn} stroke={WARN} strokeDasharray="6 3" strokeWidth={1.5} label={{ value: `warning ${warn}`, position: 'insideTopRight', fill: WARN, fontSize: 12 }} />
           <ReferenceLine y={alarm} stroke={ALARM} strokeWidth={2} label={{ value: `alarm ${alarm}`, position: 'insideBottomRight', fill: ALARM, fontSize: 12 }} />
           <Area name="95 % interval" dataKey="band" fill="#c9ccc6" stroke="none" fillOpacity={0.7} isAnimationActive={false} />
@@ -178,7 +175,7 @@ export function SeriesChart({
         <ComposedChart data={rows} margin={{ top: 6, right: 16, bottom: 22, left: 8 }}>
           <CartesianGrid stroke="#e4e5e1" />
           <XAxis type="number" dataKey="t" scale="time" domain={[fromMs, toMs]} tickFormatter={timeTick(timeZone, toMs - fromMs)} tick={AXIS} label={{ value: 'Site time', position: 'insideBottom', offset: -12, fill: '#1b2429', fontSize: 12 }} />
-          <YAxis type="number" domain={['auto', 'auto']} tick={AXIS} width={60} label={{ value: unit, angle: -90, position: 'insideLeft', fill: '#1b2429' }} />
+          <YAxis type="number" domain={['auto', 'auto']} tick={AXIS} width={60} label={{ value: unit, angle: -90, position: 'insideLeft', fill: '#1b2429', style: { textAnchor: 'middle' } }} />
           <Tooltip labelFormatter={fullTime(timeZone)} formatter={(v) => (Array.isArray(v) ? v.map((x) => Number(x).toFixed(1)).join('–') : Number(v).toFixed(2))} />
           {band ? <Area name="min–max" dataKey={band} fill="#d9dbd6" stroke="none" isAnimationActive={false} connectNulls /> : null}
           {series.map((s, i) => {

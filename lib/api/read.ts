@@ -1,30 +1,42 @@
 /**
  * The read API's calls, one function each, so that a route is one line: the
  * database of this process, the viewer of the request, and the same queries
- * as the screens.
+ * as the screens. The `*Answer` functions take the database and viewer
+ * explicitly (tests call them); the `answer*` ones find both for a request.
  */
-import { getDatabase } from '../../db/client';
-import { currentViewer } from '../auth/viewer';
+import { getDatabase, type Db } from '../../db/client';
+import { currentViewer, type Viewer } from '../auth/viewer';
 import { getSitesWithUnitIds } from '../fleet/queries';
 import { getUnitHealthReport } from '../units/queries';
 import { answer, jsonResponse, notFound, parseParams, unitParamsSchema } from './http';
 
-/** `GET /api/v1/sites`. */
-export function answerSites(): Promise<Response> {
+/** `GET /api/v1/sites` for a viewer. */
+export function sitesAnswer({ db, viewer }: { db: Db; viewer: Viewer }): Promise<Response> {
+  return answer(async () => jsonResponse({ sites: await getSitesWithUnitIds({ db, viewer }) }));
+}
+
+/** `GET /api/v1/units/SITE/UNIT/health` for a viewer: 404 for no such unit (or not the viewer's) and before the first diagnosis. */
+export function unitHealthAnswer({ db, viewer, params }: { db: Db; viewer: Viewer; params: unknown }): Promise<Response> {
   return answer(async () => {
-    const { db } = await getDatabase();
-    const sites = await getSitesWithUnitIds({ db, viewer: await currentViewer() });
-    return jsonResponse({ sites });
+    const { siteId, unitId } = parseParams(unitParamsSchema, params);
+    const report = await getUnitHealthReport({ db, viewer, siteId, unitId });
+    if (report === undefined) return notFound(`unit ${siteId}/${unitId} (or its first diagnosis)`);
+    return jsonResponse(report);
   });
 }
 
-/** `GET /api/v1/units/SITE/UNIT/health`: 404 for no such unit (or not the caller's) and before the first diagnosis. */
+/** `GET /api/v1/sites` of this request. */
+export function answerSites(): Promise<Response> {
+  return answer(async () => {
+    const { db } = await getDatabase();
+    return sitesAnswer({ db, viewer: await currentViewer() });
+  });
+}
+
+/** `GET /api/v1/units/SITE/UNIT/health` of this request. */
 export function answerUnitHealth(params: unknown): Promise<Response> {
   return answer(async () => {
-    const { siteId, unitId } = parseParams(unitParamsSchema, params);
     const { db } = await getDatabase();
-    const report = await getUnitHealthReport({ db, viewer: await currentViewer(), siteId, unitId });
-    if (report === undefined) return notFound(`unit ${siteId}/${unitId} (or its first diagnosis)`);
-    return jsonResponse(report);
+    return unitHealthAnswer({ db, viewer: await currentViewer(), params });
   });
 }

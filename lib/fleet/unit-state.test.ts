@@ -66,7 +66,7 @@ describe('unitStateOf', () => {
       nowMs: now,
     });
     expect(warn.state).toBe('warning');
-    expect(warn.label).toBe('Healthy, ke low warning');
+    expect(warn.label).toBe('Ke below the warning line');
     const notEnough = unitStateOf({
       health: { verdict: 'insufficient-data', findings: [{ code: 'insufficient-data', severity: 'warning', message: 'Only 3 samples.' }] },
       lastSampleMs: fresh,

@@ -94,6 +94,26 @@ export function codeWords(code: string): string {
   return words.charAt(0).toUpperCase() + words.slice(1);
 }
 
+/** Badge words of the findings that can make a unit's state (others fall back to their code in words). */
+const FINDING_LABEL: Record<string, string> = {
+  overspeed: 'Overspeed',
+  'speed-sensor-fault': 'Speed sensor suspect',
+  'ke-low': 'Ke below the warning line',
+  'ke-above-nameplate': 'Ke above nameplate',
+  'magnets-with-frequency-speed': 'Ke low (speed from frequency)',
+  'no-voltage-at-speed': 'No voltage while turning',
+  'shorted-turns': 'Unbalance above the line',
+  demagnetised: 'Magnets weakened',
+};
+
+/**
+ * The badge words of a finding code.
+ * @example findingLabel('no-voltage-at-speed') // 'No voltage while turning'
+ */
+export function findingLabel(code: string): string {
+  return FINDING_LABEL[code] ?? codeWords(code);
+}
+
 /** What a fault verdict rests on, when no finding says more. */
 const VERDICT_BASIS_TEXT: Record<string, string> = VERDICT_BASIS;
 
@@ -136,14 +156,14 @@ export function unitStateOf({
     const top = alarm ?? firstFinding(health, 'warning');
     return {
       state: 'fault',
-      label: FAULT_VERDICTS.has(health.verdict) ? (last as string) : codeWords((alarm as { code: string }).code),
+      label: FAULT_VERDICTS.has(health.verdict) ? (last as string) : findingLabel((alarm as { code: string }).code),
       reason: top ? shortReason(top.message) : `${last}: ${VERDICT_BASIS_TEXT[health.verdict] ?? 'see the unit’s findings'}.`,
       rank: 0,
     };
   }
   const warning = firstFinding(health, 'warning');
   if (warning !== undefined) {
-    return { state: 'warning', label: `${last}, ${codeWords(warning.code).toLowerCase()} warning`, reason: shortReason(warning.message), rank: 0 };
+    return { state: 'warning', label: findingLabel(warning.code), reason: shortReason(warning.message), rank: 0 };
   }
   if (health.verdict === 'insufficient-data') {
     return {

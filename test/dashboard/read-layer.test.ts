@@ -233,33 +233,31 @@ describe('read API', () => {
     expect(await getUnitHealthReport({ db: t.handle.db, viewer: crew, siteId: 'far-shore', unitId: 'fs-1' })).toBeUndefined();
   });
 
-  it('routes answer JSON with the contract’s errors: 400 naming the parameter, 404 for an unknown unit', async () => {
-    const g = globalThis as typeof globalThis & { __millraceDatabase?: Promise<unknown> };
-    const before = g.__millraceDatabase;
-    g.__millraceDatabase = Promise.resolve(t.handle);
-    try {
-      const { GET: sitesGet } = await import('../../app/api/v1/sites/route');
-      const { GET: healthGet } = await import('../../app/api/v1/units/[siteId]/[unitId]/health/route');
-      const sites = await sitesGet();
-      expect(sites.status).toBe(200);
-      expect(sites.headers.get('content-type')).toContain('application/json');
-      const body = (await sites.json()) as { sites: Array<{ id: string; units: string[] }> };
-      expect(body.sites.find((s) => s.id === 'upper-lea')).toEqual({ id: 'upper-lea', name: 'Upper Lea', timezone: 'Europe/London', units: ['ul-1', 'ul-2'] });
-      const call = (siteId: string, unitId: string) => healthGet(new Request('http://x/'), { params: Promise.resolve({ siteId, unitId }) });
-      const ok = await call('upper-lea', 'ul-1');
-      expect(ok.status).toBe(200);
-      expect(((await ok.json()) as { verdict: string }).verdict).toBe('demagnetised');
-      const bad = await call('Upper_Lea', 'ul-1');
-      expect(bad.status).toBe(400);
-      const badBody = (await bad.json()) as { error: { code: string; message: string } };
-      expect(badBody.error.code).toBe('bad-parameter');
-      expect(badBody.error.message).toMatch(/^siteId: /);
-      const missing = await call('upper-lea', 'no-such-unit');
-      expect(missing.status).toBe(404);
-      expect(((await missing.json()) as { error: { code: string } }).error.code).toBe('not-found');
-      expect((await call('far-shore', 'fs-2')).status).toBe(404);
-    } finally {
-      g.__millraceDatabase = before;
-    }
+  it('answers JSON with the contract’s errors: 400 naming the parameter, 404 for an unknown or unseen unit', async () => {
+    const { sitesAnswer, unitHealthAnswer } = await import('../../lib/api/read');
+    const db = t.handle.db;
+    const sites = await sitesAnswer({ db, viewer: LOCAL_VIEWER });
+    expect(sites.status).toBe(200);
+    expect(sites.headers.get('content-type')).toContain('application/json');
+    const body = (await sites.json()) as { sites: Array<{ id: string; units: string[] }> };
+    expect(body.sites.find((s) => s.id === 'upper-lea')).toEqual({ id: 'upper-lea', name: 'Upper Lea', timezone: 'Europe/London', units: ['ul-1', 'ul-2'] });
+    expect(((await (await sitesAnswer({ db, viewer: crew })).json()) as { sites: unknown[] }).sites).toHaveLength(1);
+    const call = (siteId: string, unitId: string, viewer: Viewer = LOCAL_VIEWER) => unitHealthAnswer({ db, viewer, params: { siteId, unitId } });
+    const ok = await call('upper-lea', 'ul-1');
+    expect(ok.status).toBe(200);
+    expect(((await ok.json()) as { verdict: string }).verdict).toBe('demagnetised');
+    const bad = await call('Upper_Lea', 'ul-1');
+    expect(bad.status).toBe(400);
+    const badBody = (await bad.json()) as { error: { code: string; message: string } };
+    expect(badBody.error.code).toBe('bad-parameter');
+    expect(badBody.error.message).toMatch(/^siteId: /);
+    const missing = await call('upper-lea', 'no-such-unit');
+    expect(missing.status).toBe(404);
+    expect(((await missing.json()) as { error: { code: string } }).error.code).toBe('not-found');
+    // Before the first diagnosis, and for a unit of a site the viewer may not see: the same 404.
+    expect((await call('far-shore', 'fs-2')).status).toBe(404);
+    const unseen = await call('far-shore', 'fs-1', crew);
+    expect(unseen.status).toBe(404);
+    expect(((await unseen.json()) as { error: { code: string } }).error.code).toBe('not-found');
   });
 });

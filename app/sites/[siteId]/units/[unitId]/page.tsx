@@ -172,7 +172,7 @@ export default async function UnitPage({ params, searchParams }: Props) {
               )}
             </span>
           </p>
-          {view.state.reason ? <p data-testid="unit-reason">{view.state.reason}</p> : null}
+          {view.state.reason && (view.state.state === 'no-data' || health === undefined) ? <p data-testid="unit-reason">{view.state.reason}</p> : null}
         </div>
         <LiveUpdates siteId={site.id} unitId={unit.id} unitNames={{ [unit.id]: unit.name ?? unit.id }} />
       </div>
@@ -222,6 +222,32 @@ export default async function UnitPage({ params, searchParams }: Props) {
       <section className="panel chart-panel" aria-labelledby="emf-heading">
         <h2 id="emf-heading">Voltage against speed</h2>
         <figure>
+          <ul className="legend" aria-hidden="true">
+            <li>
+              <svg width="14" height="14" viewBox="0 0 14 14">
+                <polygon points="7,1 13,13 1,13" fill="#1a5fd0" />
+              </svg>
+              EMF corrected for load and temperature
+            </li>
+            <li>
+              <svg width="14" height="14" viewBox="0 0 14 14">
+                <circle cx="7" cy="7" r="5" fill="none" stroke="#545d63" strokeWidth="1.5" />
+              </svg>
+              Terminal voltage as measured
+            </li>
+            <li>
+              <svg width="28" height="8" viewBox="0 0 28 8">
+                <line x1="0" y1="4" x2="28" y2="4" stroke="#1b2429" strokeWidth="2" />
+              </svg>
+              Nameplate line
+            </li>
+            <li>
+              <svg width="28" height="8" viewBox="0 0 28 8">
+                <line x1="0" y1="4" x2="28" y2="4" stroke="#b0241c" strokeWidth="1.5" strokeDasharray="6 4" />
+              </svg>
+              Alarm line
+            </li>
+          </ul>
           <EmfScatter terminal={terminal} corrected={corrected} lineKeVPerKrpm={emf.lineKeVPerKrpm} alarmRatio={limits.keAlarmRatio} maxRpm={unit.maxRpm} magnetC={emf.magnetC} />
           <figcaption className="chart-summary" data-testid="emf-summary">
             {emf.points.length === 0 ? (
@@ -276,6 +302,39 @@ export default async function UnitPage({ params, searchParams }: Props) {
       <section className="panel chart-panel" aria-labelledby="ke-heading">
         <h2 id="ke-heading">Corrected Ke ratio over the weeks</h2>
         <figure>
+          <ul className="legend" aria-hidden="true">
+            <li>
+              <svg width="28" height="8" viewBox="0 0 28 8">
+                <line x1="0" y1="4" x2="28" y2="4" stroke="#1b2429" strokeWidth="2" />
+                <circle cx="14" cy="4" r="2.5" fill="#1b2429" />
+              </svg>
+              Daily median
+            </li>
+            <li>
+              <svg width="18" height="10" viewBox="0 0 18 10">
+                <rect width="18" height="10" fill="#c9ccc6" />
+              </svg>
+              95 % interval
+            </li>
+            <li>
+              <svg width="28" height="8" viewBox="0 0 28 8">
+                <line x1="0" y1="4" x2="28" y2="4" stroke="#1a5fd0" strokeWidth="2" strokeDasharray="8 4" />
+              </svg>
+              Projection (dotted: its interval)
+            </li>
+            <li>
+              <svg width="28" height="8" viewBox="0 0 28 8">
+                <line x1="0" y1="4" x2="28" y2="4" stroke="#8a5000" strokeWidth="1.5" strokeDasharray="6 3" />
+              </svg>
+              Warning line
+            </li>
+            <li>
+              <svg width="28" height="8" viewBox="0 0 28 8">
+                <line x1="0" y1="4" x2="28" y2="4" stroke="#b0241c" strokeWidth="2" />
+              </svg>
+              Alarm line
+            </li>
+          </ul>
           <KeTrendChart
             days={ke.days.map((d) => ({ t: d.t, ke: d.ke, band: d.low !== null && d.high !== null ? [d.low, d.high] : null }))}
             warn={limits.keWarnRatio}
