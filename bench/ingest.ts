@@ -196,7 +196,7 @@ async function main() {
     handle = await openDatabase({ url: created.url, maxConnections: 2 });
     await registerFleet(handle, fleet);
     await ensureMonthlyPartitions({ db: handle.db, fromMs: start, toMs: Date.now() + 86_400_000 });
-    const brokerUrl = process.env.MQTT_URL || (mosquitto = await startMosquitto()).url;
+    const brokerUrl = process.env.MQTT_URL || (mosquitto = await startMosquitto({ auth: 'open-for-tests' })).url;
     const keys = new Map((await sql`select key, id from units`).map((r) => [String(r.id), Number(r.key)]));
     const list = messages();
     const payloadBytes = list.reduce((s, m) => s + Buffer.byteLength(m.payload as string), 0);

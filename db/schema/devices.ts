@@ -8,12 +8,17 @@ import { sql } from 'drizzle-orm';
 import { check, integer, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
 import { units } from './fleet';
 
+/**
+ * Only devices are stored so far; 'ingester' is room for an ingesters' account
+ * kept here (the broker's check already honours it). Today the export takes
+ * that account from MQTT_USERNAME / MQTT_PASSWORD instead (lib/cli/device.ts).
+ */
 export const MQTT_ACCOUNT_ROLES = ['device', 'ingester'] as const;
 
 export const mqttAccounts = pgTable(
   'mqtt_accounts',
   {
-    /** `<siteId>.<unitId>` for a device (slugs have no dot, so it reads back unambiguously); `millrace-ingest` for the ingesters. */
+    /** `<siteId>.<unitId>` for a device (slugs have no dot, so it reads back unambiguously). */
     username: text().primaryKey(),
     role: text({ enum: MQTT_ACCOUNT_ROLES }).notNull(),
     /** The unit a device account publishes for; null for the ingesters' account. */

@@ -3,11 +3,12 @@
  *
  * - `device credentials SITE/UNIT [--json]` issues a unit's MQTT username and
  *   password, or rotates the password; printed once (only a hash is kept).
- * - `device ingester-credentials [--json]` the same for the ingesters' account
- *   (`millrace-ingest`), which docker-compose gives the ingester as
- *   MQTT_USERNAME / MQTT_PASSWORD.
  * - `device export-broker-auth --dir DIR` writes DIR/passwords and DIR/acl
- *   for Mosquitto.
+ *   for Mosquitto: the units' accounts from the database, and the ingesters'
+ *   account from MQTT_USERNAME / MQTT_PASSWORD of the environment it runs in
+ *   (the ingesters read the same two variables; docker-compose keeps them in
+ *   .env, beside POSTGRES_PASSWORD). That password is never stored in the
+ *   database: each export hashes it afresh.
  *
  * Whoever runs these may change everything (the local viewer), as with
  * `units import`. A rotation is announced on the live feed (NOTIFY on
@@ -15,7 +16,9 @@
  */
 import { LOCAL_VIEWER } from '../auth/viewer';
 import { SLUG } from '../contract/nameplate';
-import { listBrokerAccounts, issueDeviceCredentials, issueIngesterCredentials } from '../devices/queries';
+import { getConfig } from '../config/env';
+import { listBrokerAccounts, issueDeviceCredentials } from '../devices/queries';
+import { ingesterAccount } from '../devices/broker-files';
 import { writeBrokerAuthFiles } from '../devices/broker-files';
 import { AppError } from '../errors/app-error';
 import { createLivePublisher } from '../live/publisher';
@@ -59,45 +62,25 @@ async function credentials(args: string[], io: CliIo): Promise<number> {
   }
 }
 
-async function ingesterCredentials(args: string[], io: CliIo): Promise<number> {
-  const { values, positionals } = parseOptions(args, { json: { type: 'boolean' } });
-  if (positionals.length > 0) throw new AppError('bad-input', 'cli', `device ingester-credentials: unexpected argument "${positionals[0]}"`);
-  const handle = await openCliDatabase();
-  try {
-    const result = await issueIngesterCredentials({ db: handle.db });
-    if (values.json) {
-      io.stdout.write(`${JSON.stringify({ username: result.username, password: result.password })}\n`);
-      return 0;
-    }
-    io.stdout.write(
-      `MQTT account of the ingesters ${result.rotated ? 'rotated: the old password no longer works once exported' : 'issued'}.\n` +
-        `Shown once: only a hash is kept. Give it to every ingester (in .env for docker-compose):\n\n` +
-        `MQTT_USERNAME=${result.username}\nMQTT_PASSWORD=${result.password}\n\n` +
-        `Then export for Mosquitto (npx millrace device export-broker-auth --dir DIR) and reload it (SIGHUP).\n`,
-    );
-    return 0;
-  } finally {
-    await handle.close();
-  }
-}
-
 async function exportBrokerAuth(args: string[], io: CliIo): Promise<number> {
   const { values, positionals } = parseOptions(args, { dir: { type: 'string', required: true } });
   if (positionals.length > 0) throw new AppError('bad-input', 'cli', `device export-broker-auth: unexpected argument "${positionals[0]}"`);
   const dir = values.dir!;
   if (dir.trim() === '') throw new AppError('bad-input', 'cli', '--dir: expected a folder, got an empty value');
+  const config = getConfig();
   const handle = await openCliDatabase();
   try {
-    const accounts = await listBrokerAccounts({ db: handle.db });
-    const { passwordFile, aclFile } = writeBrokerAuthFiles({ dir, accounts });
-    const devices = accounts.filter((a) => a.role === 'device').length;
-    const ingester = accounts.some((a) => a.role === 'ingester');
+    const devices = await listBrokerAccounts({ db: handle.db });
+    const ingester = ingesterAccount({ username: config.MQTT_USERNAME, password: config.MQTT_PASSWORD, devices });
+    const { passwordFile, aclFile } = writeBrokerAuthFiles({ dir, accounts: ingester ? [ingester, ...devices] : devices });
     io.stdout.write(
-      `${passwordFile} and ${aclFile} written: ${devices} device${devices === 1 ? '' : 's'}` +
-        `${ingester ? ' and the ingesters\' account' : ''} (${handle.location}).\n` +
+      `${passwordFile} and ${aclFile} written: ${devices.length} unit${devices.length === 1 ? '' : 's'}` +
+        `${ingester ? ` and the ingesters' account ${ingester.username}` : ''} (${handle.location}).\n` +
         `Reload Mosquitto to read them (docker compose kill -s SIGHUP mosquitto).\n`,
     );
-    if (!ingester) io.stderr.write('warning: no ingesters\' account yet, so no ingester can subscribe: run npx millrace device ingester-credentials, then export again\n');
+    if (!ingester) {
+      io.stderr.write('warning: MQTT_USERNAME and MQTT_PASSWORD are not set, so the files hold no ingesters\' account and no ingester can subscribe\n');
+    }
     return 0;
   } finally {
     await handle.close();
@@ -109,15 +92,13 @@ export async function run(args: string[], io: CliIo): Promise<number> {
   switch (sub) {
     case 'credentials':
       return credentials(rest, io);
-    case 'ingester-credentials':
-      return ingesterCredentials(rest, io);
     case 'export-broker-auth':
       return exportBrokerAuth(rest, io);
     default:
       throw new AppError(
         'bad-input',
         'cli',
-        `expected "device credentials SITE/UNIT", "device ingester-credentials" or "device export-broker-auth --dir DIR", got "device ${args.join(' ')}"`,
+        `expected "device credentials SITE/UNIT" or "device export-broker-auth --dir DIR", got "device ${args.join(' ')}"`,
       );
   }
 }

@@ -123,15 +123,35 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
       DATABASE_NOTE,
     ],
   },
-  'device ingester-credentials': {
-    name: 'device ingester-credentials',
-    summary: "issue the ingesters' MQTT account (millrace-ingest), or rotate its password; shown once",
-    options: [{ flag: '--json', text: 'print { "username", "password" } instead of the readable text' }],
+  'user add': {
+    name: 'user add',
+    summary: 'add a person who can sign in; the password is read from standard input',
+    options: [
+      { flag: '--email', value: 'E', required: true, text: 'their e-mail address, which they sign in with' },
+      { flag: '--role', value: 'ROLE', required: true, text: 'admin, operator, crew or owner' },
+      { flag: '--site', value: 'SITE', repeatable: true, text: 'a site id a crew member or owner sees (at least one for them)' },
+    ],
     notes: [
-      'Give it to each ingester as MQTT_USERNAME and MQTT_PASSWORD (in .env for ' +
-        'docker-compose). The account may read telemetry and presence of every unit ' +
-        'and publish nothing. The embedded broker of npm start does not need it: its ' +
-        'in-process ingester gets an account of its own at each start.',
+      'Roles: admin does everything, people included; operator sees all sites, ' +
+        'changes setup and acknowledges alerts; crew sees their sites and ' +
+        'acknowledges alerts; owner sees their sites, read only.',
+      'The password is one line of standard input (not shown on a terminal; or ' +
+        "printf '%s\\n' \"$PW\" | npx millrace user add ...): at least 12 characters, " +
+        'no other rules; a common password is refused with the reason.',
+      DATABASE_NOTE,
+    ],
+  },
+  'token create': {
+    name: 'token create',
+    summary: "print a new API token of a person once; it carries their role and sites",
+    options: [
+      { flag: '--email', value: 'E', required: true, text: 'the person whose token it is' },
+      { flag: '--name', value: 'N', text: 'what will use it, shown on their page (default: command line)' },
+      { flag: '--json', text: 'print { "token" } instead of the readable text' },
+    ],
+    notes: [
+      'Send it as the header Authorization: Bearer <token> to /api/v1. Only a ' +
+        "hash is kept; revoke it on the person's page (People).",
       DATABASE_NOTE,
     ],
   },
@@ -140,10 +160,12 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
     summary: "write Mosquitto's password file and ACL file from the accounts",
     options: [{ flag: '--dir', value: 'DIR', required: true, text: 'folder to write passwords and acl in (made if missing)' }],
     notes: [
-      'DIR/passwords (mode 0600) holds each account that is not revoked with its ' +
-        "stored hash, in Mosquitto's own format; DIR/acl (0644) lets each unit write " +
-        'only its own telemetry and presence topics and read nothing, and the ' +
-        "ingesters' account read every unit's telemetry and presence.",
+      'DIR/passwords (mode 0600) holds each unit account that is not revoked with ' +
+        "its stored hash, in Mosquitto's own format; DIR/acl (0644) lets each unit " +
+        'write only its own telemetry and presence topics and read nothing.',
+      "The ingesters' account is MQTT_USERNAME with MQTT_PASSWORD (at least 16 " +
+        'characters) from the environment, the two variables the ingesters read; it ' +
+        "may read every unit's telemetry and presence and write nothing.",
       'Point password_file and acl_file of mosquitto.conf at them, with ' +
         'allow_anonymous false. Export again after adding units or issuing or ' +
         'rotating credentials, then reload Mosquitto (SIGHUP) so it reads them.',
@@ -235,7 +257,7 @@ export function helpText(): string {
   lines.push(
     '',
     ...wrap('Exit status: 0 when the command ran, 2 when it could not (a bad file, column or option).'),
-    ...wrap('Database commands (units import, export, device) use DATABASE_URL when it is set, else the embedded database in DATA_DIR (./data).'),
+    ...wrap('Database commands (units import, export, device, user, token) use DATABASE_URL when it is set, else the embedded database in DATA_DIR (./data).'),
     '',
   );
   return lines.join('\n');

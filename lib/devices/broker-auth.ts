@@ -32,3 +32,18 @@ export function createBrokerAuthoriser({ db, localIngester }: { db: Db; localIng
     },
   };
 }
+
+/**
+ * Cuts a unit's device off the embedded broker as soon as its credentials
+ * change: the live feed carries `device-credentials` events from the rotate
+ * and revoke paths (in this process, or NOTIFY from a command on PostgreSQL).
+ * Returns the unsubscribe function.
+ */
+export function cutOffOnCredentialChange(
+  hub: { subscribe(listener: (stamped: { event: { type: string; siteId: string; unitId: string } }) => void): () => void },
+  broker: { disconnectUnit(siteId: string, unitId: string): number },
+): () => void {
+  return hub.subscribe(({ event }) => {
+    if (event.type === 'device-credentials') broker.disconnectUnit(event.siteId, event.unitId);
+  });
+}

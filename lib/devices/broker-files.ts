@@ -15,7 +15,30 @@
 import { chmodSync, mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { deviceTopics } from '../broker/access';
+import { AppError } from '../errors/app-error';
+import { hashPassword } from './credentials';
 import type { BrokerAccount } from './queries';
+
+/** Shortest ingesters' password the export takes (`openssl rand -hex 24` makes 48 characters). */
+export const MIN_INGESTER_PASSWORD_LENGTH = 16;
+
+/**
+ * The ingesters' account from MQTT_USERNAME and MQTT_PASSWORD, hashed now
+ * with a new salt; undefined when either is unset. Refuses a short password
+ * (the hash is fast: it is meant for long random secrets) and a username
+ * that is a unit's.
+ */
+export function ingesterAccount({ username, password, devices }: { username?: string | undefined; password?: string | undefined; devices: readonly BrokerAccount[] }): BrokerAccount | undefined {
+  if (username === undefined || password === undefined) return undefined;
+  if (!/^[A-Za-z0-9_-]{1,64}$/.test(username)) {
+    throw new AppError('bad-input', 'cli', `MQTT_USERNAME: expected 1 to 64 of A-Z, a-z, 0-9, _ and - (no dot: units' usernames have one), got ${JSON.stringify(username)}`);
+  }
+  if (password.length < MIN_INGESTER_PASSWORD_LENGTH) {
+    throw new AppError('bad-input', 'cli', `MQTT_PASSWORD: expected at least ${MIN_INGESTER_PASSWORD_LENGTH} characters (make one with openssl rand -hex 24), got ${password.length}`);
+  }
+  if (devices.some((d) => d.username === username)) throw new AppError('bad-input', 'cli', `MQTT_USERNAME: ${username} is a unit's username`);
+  return { role: 'ingester', username, passwordHash: hashPassword(password) };
+}
 
 /** The topics the ingesters' account may read. */
 export const INGESTER_READ_TOPICS = ['millrace/+/+/telemetry', 'millrace/+/+/presence'] as const;

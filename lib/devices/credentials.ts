@@ -38,9 +38,6 @@ export const PASSWORD_BYTES = 16;
 /** Highest iteration count a stored hash may ask for: a hash must not be able to make each connect cost seconds. */
 export const MAX_ITERATIONS = 1_000_000;
 
-/** The username of the ingesters' account in the database (devices' usernames always hold a dot). */
-export const INGESTER_USERNAME = 'millrace-ingest';
-
 /**
  * A device's MQTT username: `<siteId>.<unitId>`. Slugs are `[a-z0-9-]`, so
  * the dot separates them unambiguously, and a person reading a broker log

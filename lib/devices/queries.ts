@@ -1,6 +1,8 @@
 /**
- * MQTT accounts of units (devices) and of the ingesters: issue or rotate,
- * revoke, list, and the broker's check of a username and password.
+ * MQTT accounts of units (devices): issue or rotate, revoke, list, and the
+ * broker's check of a username and password. (The ingesters' account is not
+ * kept here: the export takes it from MQTT_USERNAME / MQTT_PASSWORD, and the
+ * embedded broker gives its in-process ingester an account in memory.)
  *
  * Screen-facing functions take the viewer: reads are scoped to the viewer's
  * sites, changes need `canEditSetup(viewer)`, and a unit on a site the viewer
@@ -19,7 +21,7 @@ import { mqttAccounts, units } from '../../db/schema';
 import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '../auth/viewer';
 import type { BrokerIdentity } from '../broker/access';
 import type { LivePublisher } from '../live/publisher';
-import { INGESTER_USERNAME, deviceUsername, hashPassword, newPassword, verifyPassword } from './credentials';
+import { deviceUsername, hashPassword, newPassword, verifyPassword } from './credentials';
 
 /** What the setup screen shows of a unit's account: never the password or its hash. */
 export interface DeviceAccountInfo {
@@ -162,18 +164,6 @@ export async function verifyBrokerCredentials({ db, username, password }: { db: 
   if (row.role === 'ingester') return { kind: 'ingester', username };
   if (row.siteId === null || row.unitId === null) return undefined;
   return { kind: 'device', username, siteId: row.siteId, unitId: row.unitId };
-}
-
-/** Issues or rotates the ingesters' account (`millrace-ingest`); the password is returned once. */
-export async function issueIngesterCredentials({ db }: { db: Db }): Promise<{ username: string; password: string; rotated: boolean }> {
-  const password = newPassword();
-  const passwordHash = hashPassword(password);
-  const [row] = await db
-    .insert(mqttAccounts)
-    .values({ username: INGESTER_USERNAME, role: 'ingester', passwordHash })
-    .onConflictDoUpdate({ target: mqttAccounts.username, set: { passwordHash, rotatedAt: sql`now()`, revokedAt: null } })
-    .returning({ createdAt: mqttAccounts.createdAt, rotatedAt: mqttAccounts.rotatedAt });
-  return { username: INGESTER_USERNAME, password, rotated: row !== undefined && row.rotatedAt.getTime() !== row.createdAt.getTime() };
 }
 
 /** A live account with its stored hash, for Mosquitto's password and ACL files. */

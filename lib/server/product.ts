@@ -42,7 +42,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   let embedded = false;
   if (brokerUrl === undefined) {
     const { startEmbeddedBroker } = await import('../broker/embedded');
-    const { createBrokerAuthoriser, newLocalIngesterAccount } = await import('../devices/broker-auth');
+    const { createBrokerAuthoriser, cutOffOnCredentialChange, newLocalIngesterAccount } = await import('../devices/broker-auth');
     const localIngester = newLocalIngesterAccount();
     const broker = await startEmbeddedBroker({
       port: config.MQTT_PORT,
@@ -51,9 +51,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
     });
     stack.push({ name: 'broker', stop: () => broker.close() });
     // A rotated or revoked device is cut off at once: the live feed carries the change (in-process, or NOTIFY from a command).
-    const unsubscribe = getLiveHub().subscribe(({ event }) => {
-      if (event.type === 'device-credentials') broker.disconnectUnit(event.siteId, event.unitId);
-    });
+    const unsubscribe = cutOffOnCredentialChange(getLiveHub(), broker);
     stack.push({ name: 'broker credentials', stop: async () => unsubscribe() });
     ingesterCredentials = localIngester;
     embedded = true;
@@ -131,6 +129,12 @@ async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: stri
   const { startSimulator, backfill } = await import('../simulate/simulator');
   const { upsertFleet } = await import('../fleet/queries');
   await upsertFleet({ db: handle.db, fleet: demoFleet });
+  if (handle.backend === 'pglite') {
+    // Embedded demo with nobody yet: an admin whose one-time password goes to the console (lib/auth/demo-admin.ts).
+    const { ensureDemoAdmin, demoAdminLines } = await import('../auth/demo-admin');
+    const admin = await ensureDemoAdmin({ db: handle.db });
+    if (admin) process.stdout.write(demoAdminLines(admin));
+  }
   const simLog = log.child('demo');
   const hasHistory = await hasSamples(handle);
   const credentials = {

@@ -7,7 +7,7 @@ import { knownVariables } from '../../lib/config/env';
 // by reading it: every variable it passes to a millrace service must be one
 // the configuration module knows, and the services must be wired as documented.
 const compose = parse(readFileSync(new URL('../../docker-compose.yml', import.meta.url), 'utf8'), { merge: true }) as {
-  services: Record<string, { environment?: Record<string, string>; command?: string[]; configs?: Array<{ source: string }> }>;
+  services: Record<string, { environment?: Record<string, string>; command?: string[]; configs?: Array<{ source: string }>; volumes?: string[] }>;
   configs: Record<string, { content: string }>;
 };
 
@@ -47,6 +47,32 @@ describe('docker-compose.yml', () => {
     // The password file the header suggests stays out of git and out of the image.
     expect(readFileSync(new URL('../../.gitignore', import.meta.url), 'utf8')).toMatch(/^\.env$/m);
     expect(readFileSync(new URL('../../.dockerignore', import.meta.url), 'utf8')).toMatch(/^\.env$/m);
+  });
+
+  it('lets nobody into Mosquitto anonymously: password and ACL files exported by millrace, mounted read-only', () => {
+    const conf = compose.configs.mosquitto_conf!.content;
+    expect(conf).toMatch(/^allow_anonymous false$/m);
+    expect(conf).not.toMatch(/^allow_anonymous true$/m);
+    const passwordFile = /^password_file (\S+)$/m.exec(conf)?.[1];
+    const aclFile = /^acl_file (\S+)$/m.exec(conf)?.[1];
+    expect(passwordFile).toBe('/mosquitto/auth/passwords');
+    expect(aclFile).toBe('/mosquitto/auth/acl');
+    // The folder `npx millrace device export-broker-auth --dir broker-auth` writes, mounted where the two lines point.
+    expect(compose.services.mosquitto?.volumes).toContain('./broker-auth:/mosquitto/auth:ro');
+    // Its hashes stay out of git and out of the image.
+    expect(readFileSync(new URL('../../.gitignore', import.meta.url), 'utf8')).toMatch(/^broker-auth\/$/m);
+    expect(readFileSync(new URL('../../.dockerignore', import.meta.url), 'utf8')).toMatch(/^broker-auth\/$/m);
+  });
+
+  it('gives the ingester its broker account from .env, with no default, and the web app none', () => {
+    const text = readFileSync(new URL('../../docker-compose.yml', import.meta.url), 'utf8');
+    for (const name of ['MQTT_USERNAME', 'MQTT_PASSWORD']) {
+      expect(compose.services.ingest?.environment?.[name]).toMatch(new RegExp(`^\\$\\{${name}:\\?set ${name}`));
+      const uses = [...text.matchAll(new RegExp(`\\$\\{${name}([^}]*)\\}`, 'g'))].map((m) => m[1]!);
+      expect(uses.length).toBeGreaterThanOrEqual(1);
+      for (const use of uses) expect(use).toMatch(new RegExp(`^:\\?set ${name}`));
+      expect(compose.services.web?.environment?.[name]).toBeUndefined();
+    }
   });
 
   it('gives Mosquitto the inline configuration, with persistence and no queue limit', () => {

@@ -95,7 +95,7 @@ describe.skipIf(skipUnless([mosquittoBinary, postgresServer], 'Mosquitto cases')
   let handle: DatabaseHandle;
 
   beforeAll(async () => {
-    mosquitto = await startMosquitto();
+    mosquitto = await startMosquitto({ auth: 'open-for-tests' });
     db = await createPostgresDatabase(adminDatabaseUrl(), 'millrace_ingest_noloss');
     handle = await openDatabase({ url: db.url, maxConnections: 2 });
     process.stdout.write(`no-loss: PostgreSQL ${new URL(db.url).host}${new URL(db.url).pathname}, Mosquitto ${mosquitto.url} (shipped configuration)\n`);

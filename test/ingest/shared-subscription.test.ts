@@ -30,7 +30,7 @@ describe.skipIf(skipUnless([mosquittoBinary, postgresServer], 'two ingesters'))(
   let published = 0;
 
   beforeAll(async () => {
-    mosquitto = await startMosquitto();
+    mosquitto = await startMosquitto({ auth: 'open-for-tests' });
     db = await createPostgresDatabase(adminDatabaseUrl(), 'millrace_ingest_shared');
     handles = [await openDatabase({ url: db.url, maxConnections: 2 }), await openDatabase({ url: db.url, migrate: false, maxConnections: 2 })];
     process.stdout.write(`shared-subscription: PostgreSQL ${new URL(db.url).host}${new URL(db.url).pathname}, Mosquitto ${mosquitto.url} (shipped configuration)\n`);

@@ -11,11 +11,11 @@ describe('startMosquitto without a runnable binary', () => {
   it('rejects, saying there is no such file, when the binary is absent', async () => {
     const bin = '/nonexistent/sbin/mosquitto';
     expect(existsSync(bin)).toBe(false);
-    await expect(startMosquitto({ bin })).rejects.toThrow(`cannot start Mosquitto (${bin}): no such file`);
+    await expect(startMosquitto({ bin, auth: 'open-for-tests' })).rejects.toThrow(`cannot start Mosquitto (${bin}): no such file`);
   });
 
   it('rejects naming the binary when the file is not a program', async () => {
     // Refused by the system (EACCES) or started and failed at once, depending on the machine.
-    await expect(startMosquitto({ bin: '/etc/hostname' })).rejects.toThrow(/^(cannot start Mosquitto \(\/etc\/hostname\): |mosquitto \(\/etc\/hostname\) exited with )/);
+    await expect(startMosquitto({ bin: '/etc/hostname', auth: 'open-for-tests' })).rejects.toThrow(/^(cannot start Mosquitto \(\/etc\/hostname\): |mosquitto \(\/etc\/hostname\) exited with )/);
   });
 });

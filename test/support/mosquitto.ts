@@ -3,6 +3,13 @@
  * ships (the inline `configs.mosquitto_conf` of docker-compose.yml) with only
  * the listener port and the persistence folder changed, so a test can stop,
  * kill and restart it.
+ *
+ * Access: given `auth` (the files `npx millrace device export-broker-auth`
+ * writes), the shipped password_file and acl_file lines point at them and
+ * anonymous access stays off, exactly as shipped. Without it the broker is
+ * opened for tests that have no accounts (the ingest tests): allow_anonymous
+ * true and no password or ACL file, stated in the call, never a default of
+ * the shipped text.
  */
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
 import { chownSync, closeSync, mkdtempSync, openSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -34,12 +41,25 @@ export function shippedMosquittoConf(): string {
   return content;
 }
 
-/** The shipped configuration with the test's port and folder (and nothing else) changed. */
-export function testMosquittoConf(port: number, dataDir: string): string {
+/** Where a test broker's accounts come from: the exported files, or none (anonymous, for tests without accounts). */
+export type TestMosquittoAuth = { passwordFile: string; aclFile: string } | 'open-for-tests';
+
+/** The shipped configuration with the test's port, folder and account files (and nothing else) changed. */
+export function testMosquittoConf(port: number, dataDir: string, auth: TestMosquittoAuth): string {
   const conf = shippedMosquittoConf();
   if (!/^listener\s+1883\b.*$/m.test(conf)) throw new Error('the shipped Mosquitto configuration has no "listener 1883" line');
   if (!/^persistence_location\s+.*$/m.test(conf)) throw new Error('the shipped Mosquitto configuration has no persistence_location line');
-  return conf
+  for (const line of [/^allow_anonymous false$/m, /^password_file\s+\S+$/m, /^acl_file\s+\S+$/m]) {
+    if (!line.test(conf)) throw new Error(`the shipped Mosquitto configuration has no ${line.source} line`);
+  }
+  const withAuth =
+    auth === 'open-for-tests'
+      ? conf
+          .replace(/^allow_anonymous false$/m, 'allow_anonymous true')
+          .replace(/^password_file\s+\S+$/m, '')
+          .replace(/^acl_file\s+\S+$/m, '')
+      : conf.replace(/^password_file\s+\S+$/m, `password_file ${auth.passwordFile}`).replace(/^acl_file\s+\S+$/m, `acl_file ${auth.aclFile}`);
+  return withAuth
     .replace(/^listener\s+1883\b.*$/m, `listener ${port} 127.0.0.1`)
     .replace(/^persistence_location\s+.*$/m, `persistence_location ${dataDir}/`);
 }
@@ -58,6 +78,8 @@ export interface TestMosquitto {
   dispose(): Promise<void>;
   /** Its log so far. */
   log(): string;
+  /** Sends SIGHUP: Mosquitto reads its password and ACL files again. */
+  reload(): void;
 }
 
 function waitForPort(port: number, timeoutMs: number): Promise<void> {
@@ -80,12 +102,12 @@ function waitForPort(port: number, timeoutMs: number): Promise<void> {
 }
 
 /** Starts a Mosquitto with the shipped configuration on a free port (`bin`: another binary than the one found). */
-export async function startMosquitto({ bin = MOSQUITTO_BIN }: { bin?: string } = {}): Promise<TestMosquitto> {
+export async function startMosquitto({ bin = MOSQUITTO_BIN, auth }: { bin?: string; auth: TestMosquittoAuth }): Promise<TestMosquitto> {
   const port = await freePort();
   const dir = mkdtempSync(join(tmpdir(), 'millrace-mosquitto-'));
   const confPath = join(dir, 'mosquitto.conf');
   const logPath = join(dir, 'mosquitto.log');
-  writeFileSync(confPath, testMosquittoConf(port, dir));
+  writeFileSync(confPath, testMosquittoConf(port, dir, auth));
   // Started as root, Mosquitto runs as the user "mosquitto": let it write its persistence file here.
   if (process.getuid?.() === 0) {
     try {
@@ -149,5 +171,8 @@ export async function startMosquitto({ bin = MOSQUITTO_BIN }: { bin?: string } =
       rmSync(dir, { recursive: true, force: true });
     },
     log: () => readFileSync(logPath, 'utf8'),
+    reload: () => {
+      child?.kill('SIGHUP');
+    },
   };
 }

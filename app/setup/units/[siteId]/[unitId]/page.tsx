@@ -9,6 +9,9 @@ import { saveUnitAction } from '../../../actions';
 import { SetupCrumbs } from '../../../_components/breadcrumbs';
 import { SavedNote } from '../../../_components/saved-note';
 import { UnitForm } from '../../../_components/unit-form';
+import { DeviceCredentials } from '../../../_components/device-credentials';
+import { issueDeviceCredentialsAction } from '../../../device-actions';
+import { getDeviceCredentials } from '../../../../../lib/devices/queries';
 import { initialFormState } from '../../../form-state';
 
 export const dynamic = 'force-dynamic';
@@ -31,6 +34,7 @@ export default async function EditUnitPage({
   const viewer = await currentViewer();
   const [site, nameplate] = await Promise.all([getSetupSiteById({ db, viewer, siteId }), getSetupUnitById({ db, viewer, siteId, unitId })]);
   if (!site || !nameplate) notFound();
+  const account = await getDeviceCredentials({ db, viewer, siteId, unitId });
   return (
     <>
       <SetupCrumbs trail={[{ href: `/setup/sites/${site.id}`, label: site.name }, { label: nameplate.name ?? nameplate.id }]} />
@@ -53,6 +57,13 @@ export default async function EditUnitPage({
       ) : (
         <pre>{JSON.stringify(nameplate, null, 2)}</pre>
       )}
+      <DeviceCredentials
+        siteId={site.id}
+        unitId={nameplate.id}
+        account={account && { username: account.username, createdAt: account.createdAt.toISOString(), rotatedAt: account.rotatedAt.toISOString(), revokedAt: account.revokedAt?.toISOString() ?? null }}
+        canEdit={canEditSetup(viewer)}
+        action={issueDeviceCredentialsAction.bind(null, { siteId: site.id, unitId: nameplate.id })}
+      />
     </>
   );
 }
