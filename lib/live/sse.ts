@@ -44,9 +44,12 @@ function frame(event: string, id: string, data: unknown): string {
   return `event: ${event}\nid: ${id}\ndata: ${JSON.stringify(data)}\n\n`;
 }
 
+/** The events a page hears of; others on the feed (device credentials) are for the server itself. */
+const PAGE_EVENTS: ReadonlySet<LiveEvent['type']> = new Set(['samples', 'diagnosis']);
+
 /** Whether `event` is for the page following `siteId` (and `unitId`). */
 export function matchesScope(event: LiveEvent, siteId: string, unitId?: string): boolean {
-  return event.siteId === siteId && (unitId === undefined || event.unitId === unitId);
+  return PAGE_EVENTS.has(event.type) && event.siteId === siteId && (unitId === undefined || event.unitId === unitId);
 }
 
 /**

@@ -8,11 +8,19 @@
  * "Server-sent events" (event, id, retry fields; comment lines start with a colon).
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { LOCAL_VIEWER, type Viewer } from '../../lib/auth/viewer';
 import { closeDatabase, getDatabase } from '../../db/client';
 import { upsertFleet } from '../../lib/fleet/queries';
 import { getLiveHub } from '../../lib/live/hub';
 import type { LiveEvent } from '../../lib/live/events';
 import { testFleet, testTag } from '../support/ingest';
+
+// The viewer of each request, as lib/auth/viewer.ts would read it from the session.
+let asViewer: Viewer = LOCAL_VIEWER;
+vi.mock('../../lib/auth/viewer', async (original) => ({
+  ...(await original<typeof import('../../lib/auth/viewer')>()),
+  currentViewer: async () => asViewer,
+}));
 
 const LIMIT = 3;
 process.env.LIVE_MAX_STREAMS = String(LIMIT);
@@ -106,10 +114,24 @@ describe('GET /api/live: the query', () => {
     expect(((await elsewhere.json()) as { error: { code: string } }).error.code).toBe('not-found:live');
     expect(hub.openStreams()).toBe(0);
   });
+
+  it('answers 404 for a site the viewer may not see, as for one that does not exist', async () => {
+    asViewer = { id: 'crew-1', role: 'crew', siteIds: [h1.siteId] };
+    try {
+      expect((await GET(new Request(`http://localhost/api/live?site=${w1.siteId}`))).status).toBe(404);
+      expect((await GET(new Request(`http://localhost/api/live?site=${w1.siteId}&unit=${w1.id}`))).status).toBe(404);
+      const own = await GET(new Request(`http://localhost/api/live?site=${h1.siteId}`));
+      expect(own.status).toBe(200);
+      await own.body?.cancel();
+      expect(hub.openStreams()).toBe(0);
+    } finally {
+      asViewer = LOCAL_VIEWER;
+    }
+  });
 });
 
 describe('GET /api/live: the stream', () => {
-  it('sends the headers an event stream needs, a ready event with an id, then the events of its unit only, each with a rising id', async () => {
+  it('sends the headers an event stream needs, a ready event with an id, then the page events of its unit only, each with a rising id', async () => {
     const s = await open(`site=${w1.siteId}&unit=${w1.id}`);
     expect(s.response.status).toBe(200);
     expect(s.response.headers.get('content-type')).toMatch(/^text\/event-stream/);
@@ -117,7 +139,13 @@ describe('GET /api/live: the stream', () => {
     expect(s.response.headers.get('x-accel-buffering')).toBe('no');
     await s.readUntil(/event: ready\n/);
     expect(s.text()).toMatch(/^retry: \d+\n/);
-    hub.publish([samples(w2), samples(h1), samples(w1), { type: 'diagnosis', siteId: w1.siteId, unitId: w1.id, verdict: 'shorted-turns', previousVerdict: 'healthy' }]);
+    hub.publish([
+      samples(w2),
+      samples(h1),
+      { type: 'device-credentials', siteId: w1.siteId, unitId: w1.id },
+      samples(w1),
+      { type: 'diagnosis', siteId: w1.siteId, unitId: w1.id, verdict: 'shorted-turns', previousVerdict: 'healthy' },
+    ]);
     await s.readUntil(/event: diagnosis\n/);
     const events = eventsOf(s.text()).filter((e) => e.event !== 'ready');
     expect(events.map((e) => [e.event, e.data.unitId])).toEqual([
