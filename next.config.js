@@ -18,6 +18,8 @@ const nextConfig = {
   serverExternalPackages: ['@electric-sql/pglite', 'postgres', 'aedes', 'aedes-persistence', 'mqtt', 'tsx'],
   // Types are checked by `npm run typecheck` (CI runs it); the build need not repeat it.
   typescript: { ignoreBuildErrors: true },
+  // forbidden() in pages a signed-in person may not open (lib/auth, app/forbidden.tsx).
+  experimental: { authInterrupts: true },
 };
 
 export default nextConfig;

@@ -1,5 +1,6 @@
 import type { Metadata, Viewport } from 'next';
 import type { ReactNode } from 'react';
+import { AccountBar } from './_components/account-bar';
 import { MainNav } from './_components/nav';
 import './globals.css';
 
@@ -22,6 +23,7 @@ export default function RootLayout({ children }: { children: ReactNode }) {
             millrace
           </a>
           <MainNav />
+          <AccountBar />
         </header>
         <main id="main" tabIndex={-1}>
           {children}

@@ -10,6 +10,8 @@ const LINKS = [
 /** The main navigation; the current section carries aria-current="page". */
 export function MainNav() {
   const path = usePathname() ?? '/';
+  // A wall screen's display link leads nowhere else.
+  if (path.startsWith('/display/')) return null;
   return (
     <nav aria-label="Main" className="main-nav">
       <ul>

@@ -3,3 +3,4 @@ export * from './telemetry';
 export * from './health';
 export * from './alerts';
 export * from './devices';
+export * from './people';

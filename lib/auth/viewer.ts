@@ -1,31 +1,38 @@
 /**
  * The person (or display) a query runs for. Every query of `lib/<area>/queries.ts`
- * that returns site data takes a viewer and scopes by site from the start, so
- * that accounts can fill this in without touching the screens.
+ * that returns site data takes a viewer and scopes by site from the start.
  *
- * Until accounts exist there is one local viewer that sees every site.
+ * `currentViewer()` reads the request: a session cookie, an
+ * `Authorization: Bearer` API token (lib/auth/request.ts). Who may do what:
+ * admin everything, people included; operator all sites, edits setup,
+ * acknowledges; crew their sites, acknowledges; owner their sites, read only.
  */
-import { z } from 'zod';
+import type { Role } from './roles';
 
-export const ROLES = ['admin', 'operator', 'crew', 'owner'] as const;
-export type Role = (typeof ROLES)[number];
-export const roleSchema = z.enum(ROLES);
+export { ROLES, roleSchema, type Role } from './roles';
 
 /** Who is asking, and which sites they may see. */
 export interface Viewer {
-  /** Stable id of the person, or 'local' for the single local viewer. */
+  /** Stable id: `person:<id>`, `display:<id>`, or 'local' for the local viewer of tests and tools. */
   readonly id: string;
   readonly role: Role;
   /** Sites the viewer may see: 'all', or the ids of their sites. */
   readonly siteIds: 'all' | readonly string[];
+  /** The person behind it (undefined for the local viewer and display links). */
+  readonly personId?: number;
+  readonly email?: string;
+  /** How the request proved who it is. */
+  readonly via?: 'local' | 'session' | 'token' | 'display';
+  /** The address the request came from, for the audit log. */
+  readonly ip?: string;
 }
 
-/** The one viewer of a product without accounts: sees and may change everything. */
-export const LOCAL_VIEWER: Viewer = Object.freeze({ id: 'local', role: 'admin', siteIds: 'all' });
+/** The viewer of tests, benches and command-line tools: sees and may change everything. */
+export const LOCAL_VIEWER: Viewer = Object.freeze({ id: 'local', role: 'admin', siteIds: 'all', via: 'local' });
 
 /**
  * Whether the viewer may see the site.
- * @example canSeeSite(LOCAL_VIEWER, 'thrennow-isk') // true
+ * @example canSeeSite(LOCAL_VIEWER, 'north-ridge') // true
  */
 export function canSeeSite(viewer: Viewer, siteId: string): boolean {
   return viewer.siteIds === 'all' || viewer.siteIds.includes(siteId);
@@ -41,13 +48,31 @@ export function siteFilter(viewer: Viewer): readonly string[] | undefined {
 
 /** Whether the viewer may change setup (sites, units, limits). */
 export function canEditSetup(viewer: Viewer): boolean {
-  return viewer.role === 'admin' || viewer.role === 'operator';
+  return viewer.via !== 'display' && (viewer.role === 'admin' || viewer.role === 'operator');
+}
+
+/** Whether the viewer may add people, reset passwords, issue tokens and display links, and read the audit log. */
+export function canAdminPeople(viewer: Viewer): boolean {
+  return viewer.via !== 'display' && viewer.role === 'admin';
+}
+
+/** Whether the viewer may acknowledge alerts (of the sites they see). */
+export function canAcknowledge(viewer: Viewer): boolean {
+  return viewer.via !== 'display' && viewer.role !== 'owner';
+}
+
+/** Whether the viewer is a signed-in person (not a display link, not the local viewer). */
+export function isPerson(viewer: Viewer): boolean {
+  return viewer.personId !== undefined && (viewer.via === 'session' || viewer.via === 'token');
 }
 
 /**
- * The viewer of the current request. Accounts will read the session here;
- * until then every request is the local viewer.
+ * The viewer of the current request (a page, route handler or server action).
+ * Nobody signed in: on a page or action, a redirect to /sign-in?next=…; in a
+ * route under /api, an AppError `unauthenticated:auth` (401). A disabled
+ * person, an ended or expired session, a revoked token count as nobody.
  */
 export async function currentViewer(): Promise<Viewer> {
-  return LOCAL_VIEWER;
+  const { viewerOfRequest } = await import('./request');
+  return viewerOfRequest();
 }

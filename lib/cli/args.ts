@@ -25,18 +25,21 @@ function optionErrorWords(error: Error & { code?: string }): string {
   }
 }
 
-type OptionSpec = Record<string, { type: 'string' | 'boolean'; required?: boolean }>;
+type OptionSpec = Record<string, { type: 'string' | 'boolean'; required?: boolean; multiple?: boolean }>;
 
 /** Parses `args` against `spec`; throws AppError (`bad-input:cli`) naming the option. */
 export function parseOptions<S extends OptionSpec>(
   args: readonly string[],
   spec: S,
-): { values: { [K in keyof S]: S[K]['type'] extends 'string' ? string | undefined : boolean | undefined }; positionals: string[] } {
+): {
+  values: { [K in keyof S]: S[K]['multiple'] extends true ? string[] | undefined : S[K]['type'] extends 'string' ? string | undefined : boolean | undefined };
+  positionals: string[];
+} {
   let parsed;
   try {
     parsed = parseArgs({
       args: [...args],
-      options: Object.fromEntries(Object.entries(spec).map(([k, v]) => [k, { type: v.type }])),
+      options: Object.fromEntries(Object.entries(spec).map(([k, v]) => [k, { type: v.type, ...(v.multiple ? { multiple: true } : {}) }])),
       allowPositionals: true,
       strict: true,
     });

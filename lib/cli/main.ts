@@ -11,6 +11,8 @@ export { helpText } from './help';
 export interface CliIo {
   stdout: NodeJS.WritableStream;
   stderr: NodeJS.WritableStream & { isTTY?: boolean };
+  /** Where `user add` reads the password (process.stdin when absent). */
+  stdin?: NodeJS.ReadableStream & { isTTY?: boolean };
 }
 
 type CommandModule = { run(args: string[], io: CliIo): Promise<number> };
@@ -22,6 +24,8 @@ export const COMMANDS: Record<string, () => Promise<CommandModule>> = {
   units: () => import('./units'),
   export: () => import('./export'),
   device: () => import('./device'),
+  user: () => import('./user'),
+  token: () => import('./token'),
 };
 
 /** The help of `millrace <name> --help` (every sub-command of `units`, say); undefined for an unknown name. */

@@ -66,6 +66,10 @@ export const envSchema = z.object({
   DIAGNOSIS_INTERVAL_S: positiveInt('a number of seconds', 86_400).default(60),
   /** Live-update streams (app/api/live) open at once in one web process; more are answered 503. */
   LIVE_MAX_STREAMS: positiveInt('a number of streams', 100_000).default(200),
+  /** A session unused this long ends (a control room's open page keeps it in use). */
+  SESSION_IDLE_HOURS: positiveInt('a number of hours', 24 * 30).default(12),
+  /** A session ends this long after sign-in, used or not. */
+  SESSION_MAX_DAYS: positiveInt('a number of days', 365).default(7),
 });
 
 export type Config = z.infer<typeof envSchema>;

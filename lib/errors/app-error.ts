@@ -5,6 +5,8 @@
  */
 export type ErrorKind =
   | 'bad-input'
+  | 'unauthenticated'
+  | 'forbidden'
   | 'not-found'
   | 'conflict'
   | 'unavailable'
@@ -13,6 +15,8 @@ export type ErrorKind =
 
 const STATUS_BY_KIND: Record<ErrorKind, number> = {
   'bad-input': 400,
+  unauthenticated: 401,
+  forbidden: 403,
   'not-found': 404,
   conflict: 409,
   unavailable: 503,
@@ -37,7 +41,7 @@ export class AppError extends Error {
     this.kind = kind;
     this.code = `${kind}:${area}`;
     this.status = options.status ?? STATUS_BY_KIND[kind];
-    this.expose = options.expose ?? (kind === 'bad-input' || kind === 'not-found' || kind === 'conflict');
+    this.expose = options.expose ?? (kind === 'bad-input' || kind === 'unauthenticated' || kind === 'forbidden' || kind === 'not-found' || kind === 'conflict');
   }
 }
 

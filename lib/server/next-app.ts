@@ -27,6 +27,8 @@ export async function startWebServer({ host, port }: { host: string; port: numbe
   await app.prepare();
   const handle = app.getRequestHandler();
   const server: Server = createServer((req, res) => {
+    // The client's address for sign-in throttling and the audit log (lib/auth/request.ts); never what a client sent.
+    req.headers['x-millrace-client-ip'] = req.socket.remoteAddress ?? 'unknown';
     handle(req, res).catch((error: unknown) => {
       res.statusCode = 500;
       res.end('internal error');

@@ -164,6 +164,16 @@ export async function importFleetFile({ db, viewer, raw, apply }: { db: Db; view
   ];
   const fileProblems = problems.filter((p) => !/^(sites|units)\[\d+\]/.test(p));
   const report: FleetImportReport = { ok: problems.length === 0, entries, problems, fileProblems };
-  if (report.ok && apply && fleet) report.applied = await upsertFleet({ db, fleet });
+  if (report.ok && apply && fleet) {
+    report.applied = await upsertFleet({ db, fleet });
+    const { actorOfViewer, writeAudit } = await import('../auth/audit');
+    await writeAudit({
+      db,
+      actor: actorOfViewer(viewer),
+      action: 'fleet-imported',
+      target: `${fleet.sites.length} sites, ${fleet.units.length} units`,
+      detail: { ...report.applied, sites: fleet.sites.map((s) => s.id), units: fleet.units.map((u) => `${u.siteId}/${u.id}`) },
+    });
+  }
   return report;
 }

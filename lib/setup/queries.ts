@@ -12,6 +12,16 @@ import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '../auth/viewe
 import type { Fleet, Nameplate, Site } from '../contract/nameplate';
 import { nameplateOfUnit, upsertFleet } from '../fleet/queries';
 import type { FieldErrors } from './forms';
+import { actorOfViewer, writeAudit } from '../auth/audit';
+
+/** The fields that differ between two records, as { field: { before, after } } for the audit log. */
+export function changedFields(before: Record<string, unknown>, after: Record<string, unknown>): Record<string, { before: unknown; after: unknown }> {
+  const out: Record<string, { before: unknown; after: unknown }> = {};
+  for (const key of new Set([...Object.keys(before), ...Object.keys(after)])) {
+    if (JSON.stringify(before[key]) !== JSON.stringify(after[key])) out[key] = { before: before[key] ?? null, after: after[key] ?? null };
+  }
+  return out;
+}
 
 export interface SetupUnit {
   id: string;
@@ -73,18 +83,21 @@ export async function insertSite({ db, viewer, site }: { db: Db; viewer: Viewer;
   if (!canEditSetup(viewer) || !canSeeSite(viewer, site.id)) return NOT_ALLOWED;
   const inserted = await db.insert(sites).values(site).onConflictDoNothing({ target: sites.id }).returning({ id: sites.id });
   if (inserted.length === 0) return { ok: false, fieldErrors: { id: `a site with id "${site.id}" exists already: choose another id, or edit that site` } };
+  await writeAudit({ db, actor: actorOfViewer(viewer), action: 'site-added', target: `site ${site.id}`, detail: { after: site } });
   return { ok: true };
 }
 
 /** Changes a site's name and time zone. */
 export async function updateSite({ db, viewer, site }: { db: Db; viewer: Viewer; site: Site }): Promise<SaveResult> {
   if (!canEditSetup(viewer) || !canSeeSite(viewer, site.id)) return NOT_ALLOWED;
+  const [before] = await db.select({ id: sites.id, name: sites.name, timezone: sites.timezone }).from(sites).where(eq(sites.id, site.id)).limit(1);
   const updated = await db
     .update(sites)
     .set({ name: site.name, timezone: site.timezone, updatedAt: new Date() })
     .where(eq(sites.id, site.id))
     .returning({ id: sites.id });
   if (updated.length === 0) return { ok: false, fieldErrors: { _form: `there is no site "${site.id}" any more: it may have been removed meanwhile` } };
+  await writeAudit({ db, actor: actorOfViewer(viewer), action: 'site-changed', target: `site ${site.id}`, detail: changedFields(before ?? {}, { ...site }) });
   return { ok: true };
 }
 
@@ -103,16 +116,19 @@ export async function insertUnit({ db, viewer, nameplate }: { db: Db; viewer: Vi
     return { ok: false, fieldErrors: { id: `a unit with id "${nameplate.id}" exists already${where}: unit ids are unique across the fleet` } };
   }
   await upsertFleet({ db, fleet: { sites: [], units: [nameplate] } });
+  await writeAudit({ db, actor: actorOfViewer(viewer), action: 'unit-added', target: `unit ${nameplate.siteId}/${nameplate.id}`, detail: { after: nameplate } });
   return { ok: true };
 }
 
 /** Replaces a unit's nameplate (its id and site stay). */
 export async function updateUnit({ db, viewer, nameplate }: { db: Db; viewer: Viewer; nameplate: Nameplate }): Promise<SaveResult> {
   if (!canEditSetup(viewer)) return NOT_ALLOWED;
-  if (!(await getSetupUnitById({ db, viewer, siteId: nameplate.siteId, unitId: nameplate.id }))) {
+  const before = await getSetupUnitById({ db, viewer, siteId: nameplate.siteId, unitId: nameplate.id });
+  if (!before) {
     return { ok: false, fieldErrors: { _form: `there is no unit "${nameplate.id}" on site "${nameplate.siteId}" any more` } };
   }
   await upsertFleet({ db, fleet: { sites: [], units: [nameplate] } });
+  await writeAudit({ db, actor: actorOfViewer(viewer), action: 'unit-changed', target: `unit ${nameplate.siteId}/${nameplate.id}`, detail: changedFields({ ...before }, { ...nameplate }) });
   return { ok: true };
 }
 

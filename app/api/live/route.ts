@@ -1,5 +1,6 @@
 import { getDatabase } from '../../../db/client';
 import { currentViewer } from '../../../lib/auth/viewer';
+import { isAppError } from '../../../lib/errors/app-error';
 import { getConfig } from '../../../lib/config/env';
 import { getLiveHub } from '../../../lib/live/hub';
 import { ensureLiveListener } from '../../../lib/live/listener';
@@ -31,7 +32,8 @@ export async function GET(request: Request) {
     const handle = await getDatabase();
     await ensureLiveListener(handle);
     scope = await getLiveScope({ db: handle.db, viewer: await currentViewer(), siteId: site, unitId: unit });
-  } catch {
+  } catch (caught) {
+    if (isAppError(caught, 'unauthenticated')) return error(401, 'unauthenticated', caught.message);
     // The page keeps what it shows and tries again (LiveUpdates retries a refused stream).
     return error(503, 'unavailable:live', `live updates are unavailable: the database cannot be reached; try again in ${RETRY_AFTER_S} s`, {
       'Retry-After': String(RETRY_AFTER_S),
