@@ -3,7 +3,7 @@
  * `npm start`), on free ports and a throw-away data folder, and stops it.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { freePort } from '../../lib/server/ports';
@@ -119,4 +119,36 @@ export async function eventually<T>(check: () => Promise<T | undefined>, timeout
     await new Promise((r) => setTimeout(r, 500));
   }
   throw new Error(`timed out waiting for ${what}${last ? `: ${String(last)}` : ''}`);
+}
+
+/**
+ * The MQTT username and password of a demo unit, as the product issued them
+ * at start (it writes them to DATA_DIR/demo-device-credentials.json when the
+ * demo runs on the embedded broker); undefined on an outside broker.
+ */
+export function demoDeviceCredentials(product: RunningProduct, siteId: string, unitId: string): { username: string; password: string } | undefined {
+  const file = join(product.env.DATA_DIR!, 'demo-device-credentials.json');
+  if (!existsSync(file)) return undefined;
+  const all = JSON.parse(readFileSync(file, 'utf8')) as Record<string, { username: string; password: string }>;
+  return all[`${siteId}/${unitId}`];
+}
+
+/**
+ * Issues (or rotates) a unit's device credentials the way an operator does:
+ * the unit's setup page, its "Device credentials" button, the password read
+ * off the page where it is shown once.
+ */
+export async function issueDeviceCredentialsOnScreen(
+  page: { goto(url: string): Promise<unknown>; click(selector: string): Promise<void>; waitForSelector(selector: string): Promise<unknown>; textContent(selector: string): Promise<string | null> },
+  product: RunningProduct,
+  siteId: string,
+  unitId: string,
+): Promise<{ username: string; password: string }> {
+  await page.goto(`${product.url}/setup/units/${siteId}/${unitId}`);
+  await page.click('#device-credentials button[type=submit]');
+  await page.waitForSelector('[data-testid="device-password"]');
+  const username = (await page.textContent('[data-testid="device-username"]'))?.trim();
+  const password = (await page.textContent('[data-testid="device-password"]'))?.trim();
+  if (!username || !password) throw new Error(`no credentials shown on the setup page of ${siteId}/${unitId}`);
+  return { username, password };
 }
