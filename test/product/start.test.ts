@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext } from 'playwright-core';
 import { mkdirSync } from 'node:fs';
-import { eventually, startProductProcess, type RunningProduct } from '../support/product';
+import { demoDeviceCredentials, eventually, startProductProcess, type RunningProduct } from '../support/product';
 import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
 import { chromium, launchChromium, skipUnless } from '../support/services';
 import mqtt from 'mqtt';
@@ -84,7 +84,8 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
 
   it('shows an operator a bad message set aside, with its reason', async () => {
     const brokerUrl = product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`;
-    const client = await mqtt.connectAsync(brokerUrl, { clientId: `bad-device-${product.port}` });
+    // Signed in as the demo unit itself (the embedded broker refuses anonymous devices).
+    const client = await mqtt.connectAsync(brokerUrl, { clientId: `bad-device-${product.port}`, ...demoDeviceCredentials(product, 'quorvenna-ildresk', 'qv-01') });
     await client.publishAsync('millrace/quorvenna-ildresk/qv-01/telemetry', JSON.stringify({ ts: Date.now(), rpm: 200, vab: 'abc' }), { qos: 1 });
     await client.endAsync();
     const html = await eventually(
