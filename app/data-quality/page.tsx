@@ -104,8 +104,7 @@ export default async function DataQualityPage({ searchParams }: { searchParams: 
               {counts.capped ? ' (counted over the newest only)' : ''}.
             </p>
             <div className="table-scroll">
-              <table className="stack">
-                <caption className="visually-hidden">Telemetry set aside in the last 24 hours, by unit, most first</caption>
+              <table className="stack" aria-label="Telemetry set aside in the last 24 hours, by unit, most first">
                 <thead>
                   <tr>
                     <th scope="col" className={styles.unitCell}>

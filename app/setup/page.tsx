@@ -66,8 +66,7 @@ export default async function SetupPage() {
               <p className="note">No units on this site yet.</p>
             ) : (
               <div className="table-scroll">
-                <table className="stack">
-                  <caption className="visually-hidden">Units of {site.name}</caption>
+                <table className="stack" aria-label={`Units of ${site.name}`}>
                   <thead>
                     <tr>
                       <th scope="col">Unit</th>

@@ -14,12 +14,14 @@ import { startProductProcess, type RunningProduct } from '../support/product';
 import { chromium, skipUnless } from '../support/services';
 import { testFleet, testTag } from '../support/ingest';
 import { launchBrowser, screenshots } from './browser';
+import { prepareProduct, type PreparedProduct } from './prepare';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 1, hydroUnits: 0 });
 const unit = fleet.units[0]!;
 
 describe.skipIf(skipUnless(chromium, 'live updates in a browser'))('live updates (npm start, MQTT, Chromium)', () => {
+  let prepared: PreparedProduct;
   let product: RunningProduct;
   let browser: BrowserContext;
   let page: Page;
@@ -34,21 +36,22 @@ describe.skipIf(skipUnless(chromium, 'live updates in a browser'))('live updates
   const showsSample = (tsMs: number) => page.locator(`time[datetime="${new Date(tsMs).toISOString()}"]`).count();
 
   beforeAll(async () => {
-    product = await startProductProcess({ DEMO: 'off', DIAGNOSIS_INTERVAL_S: '2' });
+    // The unit registered and its device given an MQTT account before the product starts, as an operator would.
+    prepared = await prepareProduct(fleet, [unit]);
+    product = await startProductProcess({ DEMO: 'off', DIAGNOSIS_INTERVAL_S: '2', ...prepared.env });
     browser = await launchBrowser();
     page = await browser.newPage();
-    // Register the unit the way an operator would: the setup screen's import.
-    await page.goto(`${product.url}/setup/import`);
-    await page.setInputFiles('#fleet-file', { name: 'FLEET.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(fleet)) });
-    await page.click('button[value=import]');
-    await page.waitForSelector('#import-result:has-text("Imported")');
-    device = await mqtt.connectAsync(product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`, { clientId: `live-device-${tag}` });
+    device = await mqtt.connectAsync(product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`, {
+      clientId: `live-device-${tag}`,
+      ...prepared.credentials.get(`${unit.siteId}/${unit.id}`),
+    });
   }, 300_000);
 
   afterAll(async () => {
     await device?.endAsync();
     await browser?.close();
     await product?.stop();
+    await prepared?.cleanUp();
   }, 60_000);
 
   it('shows a sample published over MQTT on the open unit page within 5 s, without a reload', async () => {

@@ -14,12 +14,17 @@ import { eventually, startProductProcess, type RunningProduct } from '../support
 import { chromium, skipUnless } from '../support/services';
 import { testFleet, testTag } from '../support/ingest';
 import { launchBrowser, screenshots } from './browser';
+import { prepareProduct, type PreparedProduct } from './prepare';
 
 const tag = testTag();
 const site = { id: `tarn-edge-${tag}`, name: `Tarn Edge ${tag}`, timezone: 'Europe/Oslo' };
 const unitId = `te-${tag}-01`;
+/** A unit registered before the start, with an MQTT account, to send bad telemetry as a device would. */
+const sender = testFleet(`${tag}s`, { windUnits: 1, hydroUnits: 0 });
+const senderUnit = sender.units[0]!;
 
 describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup screens (npm start, Chromium)', () => {
+  let prepared: PreparedProduct;
   let product: RunningProduct;
   let browser: BrowserContext;
   let page: Page;
@@ -31,7 +36,8 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
   const fleetNow = async () => (await (await fetch(`${product.url}/setup/export`)).json()) as { sites: Array<{ id: string }>; units: Array<{ id: string; poles: number }> };
 
   beforeAll(async () => {
-    product = await startProductProcess({ DEMO: 'off' });
+    prepared = await prepareProduct(sender, [senderUnit]);
+    product = await startProductProcess({ DEMO: 'off', ...prepared.env });
     browser = await launchBrowser();
     page = await browser.newPage();
   }, 300_000);
@@ -39,13 +45,16 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
   afterAll(async () => {
     await browser?.close();
     await product?.stop();
+    await prepared?.cleanUp();
   }, 60_000);
 
-  it('shows an empty setup that says what to do first', async () => {
+  it('lists the sites and units registered before, with what can be done', async () => {
     await page.goto(`${product.url}/setup`);
     await expect(page.locator('h1').textContent()).resolves.toBe('Setup');
-    await expect(page.locator('main').textContent()).resolves.toContain('No sites yet');
-    await shoot('setup-empty');
+    const main = (await page.locator('main').textContent())!;
+    expect(main).toContain(sender.sites[0]!.name);
+    expect(main).toContain(senderUnit.id);
+    for (const action of ['Add a site', 'Import FLEET.json', 'Download FLEET.json']) expect(main).toContain(action);
   });
 
   it('adds a site through its form', async () => {
@@ -89,7 +98,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     // What was typed is still there.
     await expect(page.locator('#field-ratedKw').inputValue()).resolves.toBe('6');
     await expect(page.locator('#field-powerCurve').inputValue()).resolves.toBe('3 0.1\n7 2\n11 6');
-    expect((await fleetNow()).units).toEqual([]);
+    expect((await fleetNow()).units.map((u) => u.id)).toEqual([senderUnit.id]);
     await shoot('setup-unit-invalid');
 
     await page.fill('#field-poles', '18');
@@ -97,7 +106,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     await page.waitForURL(`**/setup/units/${site.id}/${unitId}?saved=created`);
     await expect(page.locator('[role=status]').first().textContent()).resolves.toContain('Unit added');
     await expect(page.locator('#field-poles').inputValue()).resolves.toBe('18');
-    expect((await fleetNow()).units).toMatchObject([{ id: unitId, poles: 18 }]);
+    expect((await fleetNow()).units.find((u) => u.id === unitId)).toMatchObject({ id: unitId, poles: 18 });
     await shoot('setup-unit-edit');
     await page.goto(`${product.url}/setup`);
     await shoot('setup-list');
@@ -130,18 +139,19 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     await page.click('button:has-text("Import the checked")');
     await page.waitForSelector('#import-result:has-text("Imported")');
     await expect(page.locator('#import-result').textContent()).resolves.toContain('sites 2 added, 0 updated; units 3 added, 0 updated');
-    expect((await fleetNow()).units).toHaveLength(4);
+    expect((await fleetNow()).units).toHaveLength(5);
   });
 
   it('shows telemetry set aside on the data-quality screen, with its reason and payload', async () => {
     const brokerUrl = product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`;
-    const client = await mqtt.connectAsync(brokerUrl, { clientId: `bad-device-${tag}` });
-    await client.publishAsync(`millrace/${site.id}/${unitId}/telemetry`, JSON.stringify({ ts: Date.now(), rpm: -40, vab: 230 }), { qos: 1 });
-    await client.publishAsync(`millrace/${site.id}/${unitId}/telemetry`, '<b>not json</b>', { qos: 1 });
+    const topic = `millrace/${senderUnit.siteId}/${senderUnit.id}/telemetry`;
+    const client = await mqtt.connectAsync(brokerUrl, { clientId: `bad-device-${tag}`, ...prepared.credentials.get(`${senderUnit.siteId}/${senderUnit.id}`) });
+    await client.publishAsync(topic, JSON.stringify({ ts: Date.now(), rpm: -40, vab: 230 }), { qos: 1 });
+    await client.publishAsync(topic, '<b>not json</b>', { qos: 1 });
     await client.endAsync();
     await eventually(
       async () => {
-        await page.goto(`${product.url}/data-quality?site=${site.id}&unit=${unitId}`);
+        await page.goto(`${product.url}/data-quality?site=${senderUnit.siteId}&unit=${senderUnit.id}`);
         return (await page.locator('main').textContent())?.includes('payload is not JSON') ? true : undefined;
       },
       30_000,
@@ -149,7 +159,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     );
     const main = (await page.locator('main').textContent())!;
     expect(main).toContain('rpm: -40 rev/min is below 0, outside physical sense');
-    expect(main).toContain(`${site.id}/${unitId}`);
+    expect(main).toContain(`${senderUnit.siteId}/${senderUnit.id}`);
     // The payload is shown as text, not markup.
     await page.locator('details summary').first().click();
     await expect(page.locator('pre', { hasText: '<b>not json</b>' }).count()).resolves.toBe(1);
