@@ -59,7 +59,7 @@ function chartGroups(kind: 'wind' | 'hydro', raw: boolean) {
       ];
 }
 
-/** Rows for one chart: the fields' bucket means side by side by time, and the first field's min–max band. */
+/** Rows for one chart: the fields' bucket means side by side by time, and the first field's min–max band; a gap in the data stays a gap. */
 function mergeRows(series: Partial<Record<SeriesField, SeriesBucket[]>>, fields: SeriesField[], withBand: boolean) {
   const byT = new Map<number, Record<string, number | [number, number] | null>>();
   fields.forEach((f, i) => {
@@ -71,7 +71,20 @@ function mergeRows(series: Partial<Record<SeriesField, SeriesBucket[]>>, fields:
       byT.set(t, row);
     }
   });
-  return [...byT.values()].sort((a, b) => (a.t as number) - (b.t as number));
+  const rows = [...byT.values()].sort((a, b) => (a.t as number) - (b.t as number));
+  // A gap: longer than the contract's 10 minutes and than five typical steps. A row of nulls breaks the line there.
+  const steps = rows.slice(1).map((r, i) => (r.t as number) - (rows[i]!.t as number)).sort((a, b) => a - b);
+  const typical = steps[Math.floor(steps.length / 2)] ?? 0;
+  const gapMs = Math.max(10 * 60_000, 5 * typical);
+  const out: typeof rows = [];
+  for (const r of rows) {
+    const prev = out.at(-1);
+    if (prev && (r.t as number) - (prev.t as number) > gapMs) {
+      out.push({ t: (prev.t as number) + 1, ...Object.fromEntries([...fields, 'band'].map((f) => [f, null])) });
+    }
+    out.push(r);
+  }
+  return out;
 }
 
 function stats(buckets: SeriesBucket[]) {
@@ -347,7 +360,7 @@ export default async function UnitPage({ params, searchParams }: Props) {
           <figcaption className="chart-summary" data-testid="ke-summary">
             {ke.days.length === 0
               ? 'No Ke ratio yet: the history fills as the unit is diagnosed (one point a day, the median of its diagnoses).'
-              : `${ke.days.length} days with a Ke ratio since ${dateOnly.format(new Date(ke.days[0]!.t))}; latest daily median ${formatRatio(lastDay?.ke)}. ` +
+              : `${ke.days.length} day${ke.days.length === 1 ? '' : 's'} with a Ke ratio since ${dateOnly.format(new Date(ke.days[0]!.t))}; latest daily median ${formatRatio(lastDay?.ke)}. ` +
                 (trend.status === 'insufficient'
                   ? `A trend needs at least 10 days; ${ke.days.length} so far.`
                   : `Trend: ${formatNumber(trend.slopePctPerMonth, 2)} % of nameplate a month (95 % interval ${formatNumber(trend.slopeLowPctPerMonth, 2)} to ${formatNumber(trend.slopeHighPctPerMonth, 2)}), ` +
