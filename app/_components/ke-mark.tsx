@@ -47,7 +47,6 @@ export function KeMark({
         {low !== null && high !== null ? <rect x={x(low)} y={H / 2 - 2.5} width={Math.max(1.5, x(high) - x(low))} height="5" fill="#545d63" opacity="0.55" /> : null}
         <circle cx={x(ratio)} cy={H / 2} r="3.2" fill="#1b2429" />
       </svg>
-      <span className="visually-hidden">{where}</span>
     </span>
   );
 }

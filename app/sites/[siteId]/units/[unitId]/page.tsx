@@ -414,8 +414,9 @@ export default async function UnitPage({ params, searchParams }: Props) {
           <ul className="choice-links">
             {SERIES_RANGE_KEYS.map((r) => (
               <li key={r}>
-                <a href={`?range=${r}#series-heading`} aria-current={series.range === r ? 'true' : undefined} aria-label={SERIES_RANGES[r].label}>
+                <a href={`?range=${r}#series-heading`} aria-current={series.range === r ? 'true' : undefined} title={SERIES_RANGES[r].label}>
                   {r}
+                  <span className="visually-hidden"> ({SERIES_RANGES[r].label.toLowerCase()})</span>
                 </a>
               </li>
             ))}
