@@ -127,6 +127,22 @@ describe.skipIf(skipUnless(chromium, 'live updates in a browser'))('live updates
     for (const gap of gaps) expect(gap).toBeGreaterThanOrEqual(900);
   });
 
+  it('says it is reconnecting while the server refuses the stream, and is live again once it takes it', async () => {
+    await page.route('**/api/live?**', (route) =>
+      route.fulfill({ status: 503, headers: { 'Retry-After': '30', 'Content-Type': 'application/json' }, body: '{"error":{"code":"unavailable:live","message":"too many live streams"}}' }),
+    );
+    const pause = page.locator('button[aria-pressed]');
+    // A new stream is opened on resume: the server refuses it.
+    await pause.click();
+    await pause.click();
+    await page.waitForSelector('[data-live-status="reconnecting"]', { timeout: 5000 });
+    await expect(page.locator('[data-live-status]').textContent()).resolves.toContain('Reconnecting…');
+    await page.unroute('**/api/live?**');
+    // The page tries again by itself (first after 2 s) and the server takes it now.
+    await page.waitForSelector('[data-live-status="live"]', { timeout: 10_000 });
+    expect(navigations).toBe(0);
+  });
+
   async function shootLive() {
     const sideways = await screenshots(page, 'live-unit-paused');
     expect(sideways).toEqual([]);
