@@ -111,7 +111,9 @@ export function ImportForm({ action, maxBytes }: { action: Action; maxBytes: num
                   <span className={setup.code}>{entry.path}</span>
                   <span>
                     <span
-                      className={`${setup.tag} ${entry.action === 'invalid' ? setup.tagInvalid : entry.action === 'add' ? setup.tagAdd : setup.tagUpdate}`}
+                      className={`${setup.tag} ${
+                        entry.action === 'invalid' ? setup.tagInvalid : !report.ok ? setup.tagValid : entry.action === 'add' ? setup.tagAdd : setup.tagUpdate
+                      }`}
                     >
                       {entry.kind === 'site' ? 'Site' : 'Unit'} {entry.id ? <span className={setup.code}>{entry.id}</span> : '(no id)'}
                       {entry.kind === 'unit' && entry.siteId ? <span className="muted"> on {entry.siteId}</span> : null}
