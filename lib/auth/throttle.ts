@@ -17,7 +17,8 @@
  * Why a burst across many addresses cannot lock the real person out: the
  * account's wait does not apply to an address this account has signed in
  * from before (a pair with a success in the last 90 days). Failures from
- * other addresses, however many, never block the person's own desk or phone.
+ * other addresses, however many, never block the person's own desk or phone,
+ * and attempts from such an address do not add to the account's count.
  * From a new address the person waits at most 15 minutes between tries, and
  * the audit log shows the failures. What still blocks the person is a wait of
  * their own address or pair, which only failures from that address cause.
@@ -83,7 +84,8 @@ export async function beginAttempt({ db, email, ip, now = new Date() }: { db: Db
     const applies: Scope[] = knownGood ? ['address', 'pair'] : ['address', 'pair', 'account'];
     const waitMs = Math.max(0, ...applies.map((s) => (rows[s].blockedUntil ? rows[s].blockedUntil.getTime() - now.getTime() : 0)));
     if (waitMs > 0) return { allowed: false as const, retryAfterS: Math.ceil(waitMs / 1000) };
-    for (const scope of Object.keys(keys) as Scope[]) {
+    // A known-good address's attempts count for it and its pair only: they never add to the account's wait.
+    for (const scope of applies) {
       const failures = rows[scope].failures + 1;
       const wait = waitSeconds(failures, FREE_FAILURES[scope]);
       await tx
@@ -100,15 +102,16 @@ export async function recordSuccess({ db, email, ip, now = new Date() }: { db: D
   const keys = throttleKeys(email, ip);
   await db.transaction(async (tx) => {
     const rows = await lockRows(tx as unknown as Db, keys, now);
+    const knownGood = rows.pair.lastSuccessAt !== null && now.getTime() - rows.pair.lastSuccessAt.getTime() < KNOWN_GOOD_MS;
     await tx
       .update(signInThrottle)
       .set({ failures: 0, blockedUntil: null, lastSuccessAt: now })
       .where(sql`${signInThrottle.key} = ${keys.pair}`);
-    for (const scope of ['address', 'account'] as const) {
+    // Undo this attempt's count where beginAttempt made it. Those scopes were not waiting when it began
+    // (else it would have been refused), so the wait it set is simply taken back.
+    for (const scope of knownGood ? (['address'] as const) : (['address', 'account'] as const)) {
       const failures = Math.max(0, rows[scope].failures - 1);
-      const wait = waitSeconds(failures, FREE_FAILURES[scope]);
-      const blockedUntil = wait > 0 ? rows[scope].blockedUntil : null;
-      await tx.update(signInThrottle).set({ failures, blockedUntil }).where(sql`${signInThrottle.key} = ${keys[scope]}`);
+      await tx.update(signInThrottle).set({ failures, blockedUntil: null }).where(sql`${signInThrottle.key} = ${keys[scope]}`);
     }
   });
 }
