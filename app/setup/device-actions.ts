@@ -9,12 +9,13 @@ import { revalidatePath } from 'next/cache';
 import { getDatabase } from '../../db/client';
 import { currentViewer } from '../../lib/auth/viewer';
 import { SLUG } from '../../lib/contract/nameplate';
-import { issueDeviceCredentials } from '../../lib/devices/queries';
+import { issueDeviceCredentials, revokeDeviceCredentials } from '../../lib/devices/queries';
 import { createLivePublisher } from '../../lib/live/publisher';
 
 export interface DeviceCredentialsState {
   submitted: number;
   issued?: { username: string; password: string; rotated: boolean };
+  revoked?: boolean;
   problem?: string;
 }
 
@@ -35,4 +36,29 @@ export async function issueDeviceCredentialsAction(
   }
   revalidatePath(`/setup/units/${ids.siteId}/${ids.unitId}`);
   return { submitted, issued: { username: result.username, password: result.password, rotated: result.rotated } };
+}
+
+/**
+ * The section's one form action: `intent` "revoke" revokes the unit's account
+ * (a lost or stolen device: it can no longer connect, and a connected device
+ * is cut off); anything else issues or rotates.
+ */
+export async function deviceCredentialsAction(
+  ids: { siteId: string; unitId: string },
+  previous: DeviceCredentialsState,
+  data: FormData,
+): Promise<DeviceCredentialsState> {
+  if (data.get('intent') !== 'revoke') return issueDeviceCredentialsAction(ids, previous);
+  const submitted = previous.submitted + 1;
+  if (!SLUG.test(ids.siteId) || !SLUG.test(ids.unitId)) return { submitted, problem: 'That unit does not exist.' };
+  const handle = await getDatabase();
+  const viewer = await currentViewer();
+  const live = createLivePublisher({ handle });
+  const result = await revokeDeviceCredentials({ db: handle.db, viewer, siteId: ids.siteId, unitId: ids.unitId, live });
+  await live.flush();
+  if (!result.ok) {
+    return { submitted, problem: result.reason === 'not-found' ? 'That unit does not exist (or is not yours to see).' : result.message };
+  }
+  revalidatePath(`/setup/units/${ids.siteId}/${ids.unitId}`);
+  return { submitted, revoked: true };
 }

@@ -89,6 +89,20 @@ describe('npx millrace device', () => {
     expect((await millrace(['device', 'export-broker-auth'])).err).toContain('--dir is required');
   }, 60_000);
 
+  it('revokes an account: left out of the export, then back with a new password', async () => {
+    const out = join(dir, 'broker-auth-revoke');
+    const r = await millrace(['device', 'revoke', `${u1.siteId}/${u1.id}`]);
+    expect(r.status).toBe(0);
+    expect(r.out).toContain('revoked: it can no longer connect');
+    await millrace(['device', 'export-broker-auth', '--dir', out]);
+    expect(readFileSync(join(out, 'passwords'), 'utf8')).not.toContain(`${u1.siteId}.${u1.id}:`);
+    expect((await millrace(['device', 'revoke', `${u1.siteId}/${u1.id}`])).out).toContain('has no MQTT account to revoke');
+    expect((await millrace(['device', 'revoke', `${u1.siteId}/nothing-here`])).status).toBe(2);
+    expect((await millrace(['device', 'credentials', `${u1.siteId}/${u1.id}`, '--json'])).status).toBe(0);
+    await millrace(['device', 'export-broker-auth', '--dir', out]);
+    expect(readFileSync(join(out, 'passwords'), 'utf8')).toContain(`${u1.siteId}.${u1.id}:`);
+  }, 60_000);
+
   it('refuses while a running process holds the embedded database', async () => {
     // A lock held by a live process (this one), as a running `npm start` holds it.
     writeFileSync(join(dir, 'data', 'millrace.lock'), JSON.stringify({ pid: process.pid, startedAt: new Date().toISOString(), command: 'npm start' }));

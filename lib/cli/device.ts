@@ -3,6 +3,8 @@
  *
  * - `device credentials SITE/UNIT [--json]` issues a unit's MQTT username and
  *   password, or rotates the password; printed once (only a hash is kept).
+ * - `device revoke SITE/UNIT` revokes a unit's account (a lost or stolen
+ *   device); `device credentials` brings it back with a new password.
  * - `device export-broker-auth --dir DIR` writes DIR/passwords and DIR/acl
  *   for Mosquitto: the units' accounts from the database, and the ingesters'
  *   account from MQTT_USERNAME / MQTT_PASSWORD of the environment it runs in
@@ -17,7 +19,7 @@
 import { LOCAL_VIEWER } from '../auth/viewer';
 import { SLUG } from '../contract/nameplate';
 import { getConfig } from '../config/env';
-import { listBrokerAccounts, issueDeviceCredentials } from '../devices/queries';
+import { listBrokerAccounts, issueDeviceCredentials, revokeDeviceCredentials } from '../devices/queries';
 import { ingesterAccount } from '../devices/broker-files';
 import { writeBrokerAuthFiles } from '../devices/broker-files';
 import { AppError } from '../errors/app-error';
@@ -27,10 +29,10 @@ import { openCliDatabase } from './database';
 import type { CliIo } from './main';
 
 function parseUnit(value: string | undefined): { siteId: string; unitId: string } {
-  if (value === undefined) throw new AppError('bad-input', 'cli', 'device credentials: the unit is missing (SITE/UNIT)');
+  if (value === undefined) throw new AppError('bad-input', 'cli', 'the unit is missing (SITE/UNIT)');
   const [siteId, unitId, ...more] = value.split('/');
   if (siteId === undefined || unitId === undefined || more.length > 0 || !SLUG.test(siteId) || !SLUG.test(unitId)) {
-    throw new AppError('bad-input', 'cli', `device credentials: expected SITE/UNIT (two ids of a-z, 0-9 and -), got "${value}"`);
+    throw new AppError('bad-input', 'cli', `expected SITE/UNIT (two ids of a-z, 0-9 and -), got "${value}"`);
   }
   return { siteId, unitId };
 }
@@ -55,6 +57,28 @@ async function credentials(args: string[], io: CliIo): Promise<number> {
         `  username  ${result.username}\n  password  ${result.password}\n\n` +
         `The device may publish to millrace/${siteId}/${unitId}/telemetry and .../presence only.\n` +
         `On Mosquitto, export again (npx millrace device export-broker-auth --dir DIR) and reload it (SIGHUP).\n`,
+    );
+    return 0;
+  } finally {
+    await handle.close();
+  }
+}
+
+async function revoke(args: string[], io: CliIo): Promise<number> {
+  const { positionals } = parseOptions(args, {});
+  if (positionals.length > 1) throw new AppError('bad-input', 'cli', `device revoke: unexpected argument "${positionals[1]}"`);
+  const { siteId, unitId } = parseUnit(positionals[0]);
+  const handle = await openCliDatabase();
+  try {
+    const live = createLivePublisher({ handle });
+    const result = await revokeDeviceCredentials({ db: handle.db, viewer: LOCAL_VIEWER, siteId, unitId, live });
+    await live.flush();
+    if (!result.ok) throw new AppError(result.reason === 'not-found' ? 'not-found' : 'bad-input', 'cli', `${result.message} (${handle.location})`);
+    io.stdout.write(
+      result.revoked
+        ? `MQTT account of unit ${siteId}/${unitId} revoked: it can no longer connect (device credentials issues a new password).\n` +
+            `On Mosquitto, export again (npx millrace device export-broker-auth --dir DIR) and reload it (SIGHUP).\n`
+        : `Unit ${siteId}/${unitId} has no MQTT account to revoke.\n`,
     );
     return 0;
   } finally {
@@ -92,13 +116,15 @@ export async function run(args: string[], io: CliIo): Promise<number> {
   switch (sub) {
     case 'credentials':
       return credentials(rest, io);
+    case 'revoke':
+      return revoke(rest, io);
     case 'export-broker-auth':
       return exportBrokerAuth(rest, io);
     default:
       throw new AppError(
         'bad-input',
         'cli',
-        `expected "device credentials SITE/UNIT" or "device export-broker-auth --dir DIR", got "device ${args.join(' ')}"`,
+        `expected "device credentials SITE/UNIT", "device revoke SITE/UNIT" or "device export-broker-auth --dir DIR", got "device ${args.join(' ')}"`,
       );
   }
 }

@@ -155,6 +155,18 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
       DATABASE_NOTE,
     ],
   },
+  'device revoke': {
+    name: 'device revoke',
+    summary: "revoke a unit's MQTT account (a lost or stolen device)",
+    arguments: [{ name: 'SITE/UNIT', text: 'the unit, by its site id and unit id' }],
+    options: [],
+    notes: [
+      'The account can no longer connect; a device connected to the embedded ' +
+        'broker is cut off at once. device credentials issues a new password and ' +
+        'brings the account back. On Mosquitto, export again and reload the broker.',
+      DATABASE_NOTE,
+    ],
+  },
   'device export-broker-auth': {
     name: 'device export-broker-auth',
     summary: "write Mosquitto's password file and ACL file from the accounts",

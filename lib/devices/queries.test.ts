@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LOCAL_VIEWER, type Viewer } from '../auth/viewer';
 import type { LiveEvent } from '../live/events';
 import { createTestDatabase, type TestDatabase } from '../../test/support/backend';
-import { registerFleet, testFleet, testTag } from '../../test/support/ingest';
+import { queryRows, registerFleet, testFleet, testTag } from '../../test/support/ingest';
 import { getDeviceCredentials, issueDeviceCredentials, listBrokerAccounts, listDeviceCredentials, revokeDeviceCredentials, verifyBrokerCredentials } from './queries';
 
 const tag = testTag();
@@ -44,6 +44,11 @@ describe('device credentials', () => {
     expect(events).toEqual([{ type: 'device-credentials', siteId: windSite, unitId: w1.id }]);
     expect(await verifyBrokerCredentials({ db: db.handle.db, username: first.username, password: first.password })).toBeUndefined();
     expect(await verifyBrokerCredentials({ db: db.handle.db, username: first.username, password: second.password })).toBeDefined();
+    // Both in the audit log, by whom and for which unit, without the password.
+    const audit = await queryRows<{ action: string; target: string; detail: unknown }>(db.handle, `select action, target, detail from audit_log where target = $1 order by id`, [`unit ${windSite}/${w1.id}`]);
+    expect(audit.map((a) => a.action)).toEqual(['device-credentials-issued', 'device-credentials-rotated']);
+    expect(JSON.stringify(audit)).not.toContain(first.password);
+    expect(JSON.stringify(audit)).not.toContain(second.password);
     // Stored as a $7$ hash, never as the password.
     const [row] = await listBrokerAccounts({ db: db.handle.db });
     expect(row?.passwordHash).toMatch(/^\$7\$101\$/);

@@ -18,6 +18,7 @@
 import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { mqttAccounts, units } from '../../db/schema';
+import { actorOfViewer, writeAudit } from '../auth/audit';
 import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '../auth/viewer';
 import type { BrokerIdentity } from '../broker/access';
 import type { LivePublisher } from '../live/publisher';
@@ -62,12 +63,15 @@ export async function issueDeviceCredentials({
   siteId,
   unitId,
   live,
+  audit = true,
 }: {
   db: Db;
   viewer: Viewer;
   siteId: string;
   unitId: string;
   live?: Live;
+  /** Write the audit log (who issued or rotated); off only for the demo fleet's own accounts at start. */
+  audit?: boolean;
 }): Promise<IssueResult> {
   if (!canSeeSite(viewer, siteId)) return NOT_FOUND(siteId, unitId);
   const unitKey = await unitKeyOf(db, siteId, unitId);
@@ -85,6 +89,9 @@ export async function issueDeviceCredentials({
     })
     .returning({ createdAt: mqttAccounts.createdAt, rotatedAt: mqttAccounts.rotatedAt });
   const rotated = row !== undefined && row.rotatedAt.getTime() !== row.createdAt.getTime();
+  if (audit) {
+    await writeAudit({ db, actor: actorOfViewer(viewer), action: rotated ? 'device-credentials-rotated' : 'device-credentials-issued', target: `unit ${siteId}/${unitId}`, detail: { username } });
+  }
   // A device still connected with the old password is cut off (embedded broker).
   if (rotated) live?.publish([{ type: 'device-credentials', siteId, unitId }]);
   return { ok: true, username, password, rotated };
@@ -113,6 +120,9 @@ export async function revokeDeviceCredentials({
     .set({ revokedAt: sql`now()` })
     .where(and(eq(mqttAccounts.unitKey, unitKey), isNull(mqttAccounts.revokedAt)))
     .returning({ username: mqttAccounts.username });
+  if (rows.length > 0) {
+    await writeAudit({ db, actor: actorOfViewer(viewer), action: 'device-credentials-revoked', target: `unit ${siteId}/${unitId}`, detail: { username: rows[0]!.username } });
+  }
   live?.publish([{ type: 'device-credentials', siteId, unitId }]);
   return { ok: true, revoked: rows.length > 0 };
 }

@@ -173,7 +173,7 @@ async function issueDemoCredentials(config: Config, handle: DatabaseHandle, unit
   const { join } = await import('node:path');
   const issued = new Map<string, { username: string; password: string }>();
   for (const unit of units) {
-    const result = await issueDeviceCredentials({ db: handle.db, viewer: LOCAL_VIEWER, siteId: unit.siteId, unitId: unit.id });
+    const result = await issueDeviceCredentials({ db: handle.db, viewer: LOCAL_VIEWER, siteId: unit.siteId, unitId: unit.id, audit: false });
     if (result.ok) issued.set(`${unit.siteId}/${unit.id}`, { username: result.username, password: result.password });
   }
   try {

@@ -93,4 +93,20 @@ describe.skipIf(realBrokerUrl !== undefined || skipUnless(chromium, 'device cred
     expect(typeof again).not.toBe('string');
     await (again as MqttClient).endAsync();
   });
+
+  it('revoking cuts the device off and refuses it; the page says so', async () => {
+    const issued = await issueDeviceCredentialsOnScreen(page, product, unit.siteId, unit.id);
+    const device = (await tryConnect(brokerUrl, { clientId: `dev-${tag}`, ...issued })) as MqttClient;
+    expect(typeof device).not.toBe('string');
+    const closed = new Promise<void>((resolve) => device.once('close', () => resolve()));
+    await page.click('#device-credentials button[name=intent][value=revoke]');
+    await page.waitForSelector('#device-credentials :text("Revoked: the device cannot connect")');
+    expect(await page.locator('[data-testid="device-password"]').count()).toBe(0);
+    await closed;
+    device.end(true);
+    expect(await tryConnect(brokerUrl, { clientId: `dev-${tag}`, ...issued })).toBe('4');
+    await page.reload();
+    expect((await page.locator('#device-credentials').textContent()) ?? '').toMatch(/Revoked .*the device cannot connect/);
+    expect(await screenshots(page, 'setup-device-credentials-revoked')).toEqual([]);
+  });
 });

@@ -145,7 +145,7 @@ export async function issueDeviceCredentialsOnScreen(
   unitId: string,
 ): Promise<{ username: string; password: string }> {
   await page.goto(`${product.url}/setup/units/${siteId}/${unitId}`);
-  await page.click('#device-credentials button[type=submit]');
+  await page.click('#device-credentials button[name=intent][value=issue]');
   await page.waitForSelector('[data-testid="device-password"]');
   const username = (await page.textContent('[data-testid="device-username"]'))?.trim();
   const password = (await page.textContent('[data-testid="device-password"]'))?.trim();

@@ -55,7 +55,8 @@ export function DeviceCredentials({
   unitId: string;
   account: DeviceAccountView | undefined;
   canEdit: boolean;
-  action: (previous: DeviceCredentialsState) => Promise<DeviceCredentialsState>;
+  /** The form action: issues or rotates, or with `intent=revoke` revokes. */
+  action: (previous: DeviceCredentialsState, data: FormData) => Promise<DeviceCredentialsState>;
 }) {
   const [state, submit, pending] = useActionState(action, { submitted: 0 });
   const issued = state.issued;
@@ -106,15 +107,32 @@ export function DeviceCredentials({
           {state.problem}
         </p>
       ) : null}
+      {state.revoked ? (
+        <p role="status" className={styles.revoked}>
+          Revoked: the device cannot connect, and was cut off if it was connected.
+        </p>
+      ) : null}
       {canEdit ? (
-        <form action={submit}>
-          {live ? <p className="note">Rotating cuts the device off at once: it needs the new password to connect again.</p> : null}
-          <div className={formStyles.actions}>
-            <button type="submit" className={formStyles.primary} disabled={pending}>
-              {pending ? 'Working…' : live ? 'Rotate password' : 'Issue credentials'}
-            </button>
-          </div>
-        </form>
+        <>
+          <form action={submit}>
+            {live ? <p className="note">Rotating cuts the device off at once: it needs the new password to connect again.</p> : null}
+            <div className={formStyles.actions}>
+              <button type="submit" name="intent" value="issue" className={formStyles.primary} disabled={pending}>
+                {pending ? 'Working…' : live ? 'Rotate password' : 'Issue credentials'}
+              </button>
+            </div>
+          </form>
+          {live ? (
+            <form action={submit} className={styles.revokeForm}>
+              <p className="note">A lost or stolen device: revoke its account. Issuing credentials again brings it back with a new password.</p>
+              <div className={formStyles.actions}>
+                <button type="submit" name="intent" value="revoke" className={styles.copy} disabled={pending}>
+                  {pending ? 'Working…' : 'Revoke credentials'}
+                </button>
+              </div>
+            </form>
+          ) : null}
+        </>
       ) : (
         <p className="note">Only an administrator or operator may issue or rotate them.</p>
       )}

@@ -10,7 +10,7 @@ import { SetupCrumbs } from '../../../_components/breadcrumbs';
 import { SavedNote } from '../../../_components/saved-note';
 import { UnitForm } from '../../../_components/unit-form';
 import { DeviceCredentials } from '../../../_components/device-credentials';
-import { issueDeviceCredentialsAction } from '../../../device-actions';
+import { deviceCredentialsAction } from '../../../device-actions';
 import { getDeviceCredentials } from '../../../../../lib/devices/queries';
 import { initialFormState } from '../../../form-state';
 
@@ -62,7 +62,7 @@ export default async function EditUnitPage({
         unitId={nameplate.id}
         account={account && { username: account.username, createdAt: account.createdAt.toISOString(), rotatedAt: account.rotatedAt.toISOString(), revokedAt: account.revokedAt?.toISOString() ?? null }}
         canEdit={canEditSetup(viewer)}
-        action={issueDeviceCredentialsAction.bind(null, { siteId: site.id, unitId: nameplate.id })}
+        action={deviceCredentialsAction.bind(null, { siteId: site.id, unitId: nameplate.id })}
       />
     </>
   );
