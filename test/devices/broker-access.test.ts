@@ -20,6 +20,7 @@ import { newPassword } from '../../lib/devices/credentials';
 import { issueDeviceCredentials, listBrokerAccounts, revokeDeviceCredentials } from '../../lib/devices/queries';
 import { startIngester, type Ingester } from '../../lib/ingest/ingester';
 import { createLiveHub } from '../../lib/live/hub';
+import { startLiveListener, type LiveListener } from '../../lib/live/listener';
 import { createLivePublisher } from '../../lib/live/publisher';
 import { freePort } from '../../lib/server/ports';
 import { createTestDatabase, type TestDatabase } from '../support/backend';
@@ -132,12 +133,15 @@ describe('the embedded broker with the product\'s authoriser', () => {
   const ingestClientId = `access-${tag}`;
   let url: string;
   let stopCutOff: () => void;
+  let listener: LiveListener;
 
   beforeAll(async () => {
     const real = createBrokerAuthoriser({ db: db.handle.db, localIngester });
     const counting: BrokerAuthoriser = { verify: (u, p) => ((verifications += 1), real.verify(u, p)) };
     broker = await startEmbeddedBroker({ port: await freePort(), auth: counting, log: testLogger('broker') });
     url = broker.url;
+    // As the product wires it: changes reach the hub in-process on PGlite, by NOTIFY/LISTEN on PostgreSQL.
+    listener = await startLiveListener({ handle: db.handle, hub });
     stopCutOff = cutOffOnCredentialChange(hub, broker);
     ingester = await startIngester({
       handle: db.handle,
@@ -156,6 +160,7 @@ describe('the embedded broker with the product\'s authoriser', () => {
   });
   afterAll(async () => {
     stopCutOff?.();
+    await listener?.stop();
     await ingester?.stop();
     await broker?.close();
   });
