@@ -4,10 +4,12 @@
  * once and let the device in; a page load (GET) never issues or shows one;
  * rotating cuts the connected device off and the old password stops working.
  */
+import { execFile } from 'node:child_process';
+import { promisify } from 'node:util';
 import mqtt, { type MqttClient } from 'mqtt';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { realBrokerUrl } from '../support/backend';
+import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
 import { testFleet, testTag } from '../support/ingest';
 import { issueDeviceCredentialsOnScreen, startProductProcess, type RunningProduct } from '../support/product';
 import { chromium, skipUnless } from '../support/services';
@@ -108,5 +110,28 @@ describe.skipIf(realBrokerUrl !== undefined || skipUnless(chromium, 'device cred
     await page.reload();
     expect((await page.locator('#device-credentials').textContent()) ?? '').toMatch(/Revoked .*the device cannot connect/);
     expect(await screenshots(page, 'setup-device-credentials-revoked')).toEqual([]);
+  });
+
+  it('takes a rotation from the command line too: on PostgreSQL it cuts the device off by NOTIFY; on the embedded database the command refuses', async () => {
+    const issued = await issueDeviceCredentialsOnScreen(page, product, unit.siteId, unit.id);
+    const device = (await tryConnect(brokerUrl, { clientId: `dev-${tag}`, ...issued })) as MqttClient;
+    expect(typeof device).not.toBe('string');
+    const closed = new Promise<void>((resolve) => device.once('close', () => resolve()));
+    const env: NodeJS.ProcessEnv = { ...process.env, DATA_DIR: product.env.DATA_DIR, LOG_LEVEL: 'warn' };
+    if (product.env.DATABASE_URL) env.DATABASE_URL = product.env.DATABASE_URL;
+    else delete env.DATABASE_URL;
+    const command = promisify(execFile)(process.execPath, ['bin/millrace.mjs', 'device', 'credentials', `${unit.siteId}/${unit.id}`, '--json'], { env });
+    if (realDatabaseUrl) {
+      const fresh = JSON.parse((await command).stdout) as { username: string; password: string };
+      await closed;
+      expect(await tryConnect(brokerUrl, { clientId: `dev-${tag}`, ...issued })).toBe('4');
+      const again = await tryConnect(brokerUrl, { clientId: `dev-${tag}`, ...fresh });
+      expect(typeof again).not.toBe('string');
+      await (again as MqttClient).endAsync();
+    } else {
+      await expect(command).rejects.toMatchObject({ code: 2, stderr: expect.stringContaining('is in use by process') });
+      expect(device.connected).toBe(true);
+    }
+    device.end(true);
   });
 });
