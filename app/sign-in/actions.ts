@@ -9,6 +9,7 @@ import { redirect } from 'next/navigation';
 import { getDatabase } from '../../db/client';
 import { safeNextPath } from '../../lib/auth/access';
 import { writeAudit } from '../../lib/auth/audit';
+import { getPersonById } from '../../lib/auth/people';
 import { clientIp, secureCookies, sessionTimes } from '../../lib/auth/request';
 import { endSession, sessionCookieName, sessionCookieOptions } from '../../lib/auth/sessions';
 import { REFUSED_MESSAGE, signIn } from '../../lib/auth/sign-in';
@@ -46,6 +47,9 @@ export async function signInAction(previous: SignInState, data: FormData): Promi
   if (result.kind === 'refused') return { submitted, email, error: REFUSED_MESSAGE };
   const jar = await cookies();
   const times = sessionTimes();
+  // A session this browser held before (someone else's, on a shared screen) ends: one browser, one session.
+  const previousToken = jar.get(sessionCookieName(secure))?.value;
+  if (previousToken) await endSession({ db, token: previousToken });
   jar.set(sessionCookieName(secure), result.token, sessionCookieOptions(secure, times.maxDays * 86_400));
   redirect(result.mustChangePassword ? `/account/password?next=${encodeURIComponent(next)}` : next);
 }
@@ -59,7 +63,10 @@ export async function signOutAction(): Promise<void> {
   if (token) {
     const { db } = await getDatabase();
     const ended = await endSession({ db, token });
-    if (ended) await writeAudit({ db, actor: { personId: ended.personId, label: `person ${ended.personId}`, ip: clientIp(h) }, action: 'sign-out' });
+    if (ended) {
+      const person = await getPersonById({ db, personId: ended.personId });
+      await writeAudit({ db, actor: { personId: ended.personId, label: person?.email ?? `person ${ended.personId}`, ip: clientIp(h) }, action: 'sign-out' });
+    }
   }
   jar.delete(name);
   redirect('/sign-in?signed-out=1');

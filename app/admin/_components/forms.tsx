@@ -39,19 +39,18 @@ function invalid(state: FormResult, name: string) {
   return state.fieldErrors?.[name] ? { 'aria-invalid': true as const, 'aria-describedby': `${name}-error` } : {};
 }
 
-const ROLE_WORDS = {
-  admin: 'Administrator: everything, people included',
-  operator: 'Operator: all sites; changes setup; acknowledges alerts',
-  crew: 'Crew: their sites; acknowledges alerts',
-  owner: 'Owner: their sites, read only',
-} as const;
+const ROLE_WORDS = { admin: 'Administrator', operator: 'Operator', crew: 'Crew', owner: 'Owner' } as const;
 
 function RoleAndSites({ state, sites, role, chosen }: { state: FormResult; sites: { id: string; name: string }[]; role?: string; chosen?: string[] }) {
   return (
     <>
       <div className={styles.field}>
         <label htmlFor="role">Role</label>
-        <select id="role" name="role" defaultValue={state.values?.role ?? role ?? 'crew'} {...invalid(state, 'role')}>
+        <span className={styles.hint} id="role-hint">
+          Administrator: everything, people included. Operator: all sites, changes setup, acknowledges alerts. Crew: their sites, acknowledges alerts. Owner:
+          their sites, read only.
+        </span>
+        <select id="role" name="role" defaultValue={state.values?.role ?? role ?? 'crew'} aria-describedby="role-hint" {...invalid(state, 'role')}>
           {Object.entries(ROLE_WORDS).map(([value, words]) => (
             <option key={value} value={value}>
               {words}

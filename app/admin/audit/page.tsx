@@ -5,6 +5,7 @@ import { getDatabase } from '../../../db/client';
 import { AUDIT_ACTIONS, getAuditPage } from '../../../lib/auth/audit';
 import { getPeople } from '../../../lib/auth/people';
 import { canAdminPeople, currentViewer } from '../../../lib/auth/viewer';
+import styles from '../../account/account.module.css';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Audit log' };
@@ -76,36 +77,21 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       {page.rows.length === 0 ? (
         <p className="empty">{before ? 'No older entries.' : 'Nothing in the log matches.'}</p>
       ) : (
-        <div className="table-scroll">
-          <table>
-            <thead>
-              <tr>
-                <th scope="col">When (UTC)</th>
-                <th scope="col">Who</th>
-                <th scope="col">From</th>
-                <th scope="col">Action</th>
-                <th scope="col">On</th>
-                <th scope="col">What changed</th>
-              </tr>
-            </thead>
-            <tbody>
-              {page.rows.map((r) => (
-                <tr key={r.id}>
-                  <td className="num">
-                    <time dateTime={r.at.toISOString()}>{r.at.toISOString().slice(0, 19).replace('T', ' ')}</time>
-                  </td>
-                  <td>{r.actor}</td>
-                  <td className="unit-id">{r.ip ?? '—'}</td>
-                  <td>{r.action}</td>
-                  <td>{r.target ?? '—'}</td>
-                  <td>
-                    {Object.keys(r.detail).length ? <code style={{ whiteSpace: 'pre-wrap' }}>{JSON.stringify(r.detail)}</code> : '—'}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <ol className={styles.audit} aria-label="Audit log entries, newest first">
+          {page.rows.map((r) => (
+            <li key={r.id}>
+              <p className={styles.auditHead}>
+                <strong>{r.action}</strong>
+                {r.target ? <span> · {r.target}</span> : null}
+              </p>
+              <p className="note">
+                <time dateTime={r.at.toISOString()}>{r.at.toISOString().slice(0, 19).replace('T', ' ')} UTC</time> · by {r.actor} · from{' '}
+                <span className="unit-id">{r.ip ?? 'unknown address'}</span>
+              </p>
+              {Object.keys(r.detail).length ? <code className={styles.auditDetail}>{JSON.stringify(r.detail, null, 1)}</code> : null}
+            </li>
+          ))}
+        </ol>
       )}
       <p>
         {before ? <a href={`/admin/audit${keep.size ? `?${keep}` : ''}`}>Newest</a> : null} {nextHref ? <a href={nextHref}>Older entries</a> : null}
