@@ -10,8 +10,8 @@ const LINKS = [
 /** The main navigation; the current section carries aria-current="page". */
 export function MainNav() {
   const path = usePathname() ?? '/';
-  // A wall screen's display link leads nowhere else.
-  if (path.startsWith('/display/')) return null;
+  // A wall screen's display link leads nowhere else; before sign-in every link leads back to sign-in.
+  if (path.startsWith('/display/') || path.startsWith('/sign-in')) return null;
   return (
     <nav aria-label="Main" className="main-nav">
       <ul>

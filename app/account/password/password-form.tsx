@@ -32,7 +32,14 @@ export function PasswordChangeForm({ next }: { next: string }) {
       </div>
       <div className={styles.field}>
         <label htmlFor="password">New password</label>
-        <input id="password" name="password" type="password" autoComplete="new-password" aria-describedby="password-hint" {...attrs('password')} />
+        <input
+          id="password"
+          name="password"
+          type="password"
+          autoComplete="new-password"
+          aria-invalid={e.password ? true : undefined}
+          aria-describedby={e.password ? 'password-hint password-error' : 'password-hint'}
+        />
         <span className={styles.hint} id="password-hint">
           At least 12 characters, no other rules. Common passwords are refused; a few unrelated words work well.
         </span>

@@ -50,7 +50,13 @@ function RoleAndSites({ state, sites, role, chosen }: { state: FormResult; sites
           Administrator: everything, people included. Operator: all sites, changes setup, acknowledges alerts. Crew: their sites, acknowledges alerts. Owner:
           their sites, read only.
         </span>
-        <select id="role" name="role" defaultValue={state.values?.role ?? role ?? 'crew'} aria-describedby="role-hint" {...invalid(state, 'role')}>
+        <select
+          id="role"
+          name="role"
+          defaultValue={state.values?.role ?? role ?? 'crew'}
+          aria-invalid={state.fieldErrors?.role ? true : undefined}
+          aria-describedby={state.fieldErrors?.role ? 'role-hint role-error' : 'role-hint'}
+        >
           {Object.entries(ROLE_WORDS).map(([value, words]) => (
             <option key={value} value={value}>
               {words}
@@ -86,7 +92,14 @@ export function AddPersonForm({ action, sites }: { action: Action; sites: { id: 
       <RoleAndSites state={state} sites={sites} />
       <div className={styles.field}>
         <label htmlFor="password">First password</label>
-        <input id="password" name="password" type="password" autoComplete="new-password" aria-describedby="password-hint" {...invalid(state, 'password')} />
+        <input
+          id="password"
+          name="password"
+          type="password"
+          autoComplete="new-password"
+          aria-invalid={state.fieldErrors?.password ? true : undefined}
+          aria-describedby={state.fieldErrors?.password ? 'password-hint password-error' : 'password-hint'}
+        />
         <span className={styles.hint} id="password-hint">
           At least 12 characters; common passwords are refused. They choose their own at their first sign-in.
         </span>
