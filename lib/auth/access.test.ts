@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { isApiPath, meetsNeed, needOfPath, safeNextPath } from './access';
 import { contentSecurityPolicy } from './csp';
 import { sameOriginRequest } from './csrf';
-import type { Viewer } from './viewer';
+import { canAcknowledge, canAdminPeople, canEditSetup, type Viewer } from './viewer';
 
 const as = (role: Viewer['role'], via: Viewer['via'] = 'session'): Viewer => ({ id: 'p', role, siteIds: 'all', via, personId: 1 });
 
@@ -31,6 +31,22 @@ describe('needOfPath and meetsNeed', () => {
   it('tells API paths from pages', () => {
     expect(isApiPath('/api/v1/sites')).toBe(true);
     expect(isApiPath('/apiary')).toBe(false);
+  });
+});
+
+describe('role rules', () => {
+  it('gives each role what the issue says, and a display link nothing to change', () => {
+    const table = (['admin', 'operator', 'crew', 'owner'] as const).map((r) => [r, canAdminPeople(as(r)), canEditSetup(as(r)), canAcknowledge(as(r))]);
+    expect(table).toEqual([
+      ['admin', true, true, true],
+      ['operator', false, true, true],
+      ['crew', false, false, true],
+      ['owner', false, false, false],
+    ]);
+    for (const r of ['admin', 'operator', 'crew', 'owner'] as const) {
+      const display = as(r, 'display');
+      expect([canAdminPeople(display), canEditSetup(display), canAcknowledge(display)], r).toEqual([false, false, false]);
+    }
   });
 });
 
