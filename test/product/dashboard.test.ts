@@ -103,6 +103,15 @@ describe.skipIf(skipUnless(chromium, 'dashboard screens in a browser'))('dashboa
     await expect(page.locator('table.site-units tbody tr').first().getAttribute('data-state')).resolves.toBe('fault');
     expect(await screenshots(page, 'dashboard-site')).toEqual([]);
 
+    // Filter and sort by search parameters (plain links and a GET form, no script needed); a bad one is named.
+    await page.goto(`${product.url}/sites/${siteId}?state=fault&sort=ke&dir=asc`, { waitUntil: 'load' });
+    const states = await page.locator('table.site-units tbody tr[data-unit]').evaluateAll((els) => els.map((e) => e.getAttribute('data-state')));
+    expect(states.length).toBeGreaterThan(0);
+    expect(states.every((st) => st === 'fault')).toBe(true);
+    await page.goto(`${product.url}/sites/${siteId}?sort=colour`, { waitUntil: 'load' });
+    await expect(page.locator('[data-testid="param-problems"]').textContent()).resolves.toContain('sort: "colour" is not one of');
+    await page.goto(`${product.url}/sites/${siteId}`, { waitUntil: 'load' });
+
     await row.locator('td.card-title a').click();
     await page.waitForURL(`**/sites/${siteId}/units/${unitId}`);
     await expect(page.locator('h1').textContent()).resolves.toContain(unitId);

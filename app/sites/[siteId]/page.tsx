@@ -101,7 +101,7 @@ export default async function SitePage({ params, searchParams }: Props) {
         {table.state !== 'all' || table.sort !== 'state' || table.dir !== 'asc' ? <a href="?">Reset</a> : null}
       </form>
       {problems.length > 0 ? (
-        <p className="note" role="status">
+        <p className="note" role="status" data-testid="param-problems">
           {problems.join('. ')}.
         </p>
       ) : null}
