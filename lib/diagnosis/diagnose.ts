@@ -15,7 +15,7 @@ import { phaseVoltsFromLines } from '../physics/phase-voltages';
 import { rpmFromHz } from '../physics/synchronous-speed';
 import { fitThroughOrigin } from '../physics/through-origin-fit';
 import { lineVoltageUnbalancePct } from '../physics/unbalance';
-import { COPPER_REF_C, COPPER_TEMP_COEFF_PER_C } from '../physics/winding-resistance';
+import { lineEmfBehindTerminals, loadPowerFactor, magnetTempC, windingOhm, windingTempC } from './sample-emf';
 import { SampleColumns, type DiagnosisSample } from './sample-columns';
 import { OVERSPEED_GAP_S, resolveLimits, TRANSIENT_NEIGHBOUR_MAX_S, type ResolvedLimits } from './limits';
 import { durationWords, finding, num, pctFromOne, sortFindings, type Finding } from './findings';
@@ -664,16 +664,11 @@ function fitTrack(track: Track, cols: SampleColumns, order: Uint32Array | undefi
     const speed = track.speed[k] as number;
     const stator = statorC[i] as number;
     const ambient = ambientC[i] as number;
-    let magnetC = nameplate.keRefC;
-    if (stator === stator) {
-      magnetC = stator;
-      fromStator++;
-    } else if (ambient === ambient) {
-      magnetC = ambient;
-      fromAmbient++;
-    }
+    const magnetC = magnetTempC(stator, ambient, nameplate.keRefC);
+    if (stator === stator) fromStator++;
+    else if (ambient === ambient) fromAmbient++;
     magnetSum += magnetC;
-    const windingC = stator === stator ? stator : ambient === ambient ? ambient : COPPER_REF_C;
+    const windingC = windingTempC(stator, ambient);
     // Past the coefficient's linear range the factor would reach 0; 5 % keeps the fit finite.
     const tempFactor = Math.max(0.05, 1 + coeff * (magnetC - nameplate.keRefC));
     const xi = keRef * tempFactor * speed;
@@ -684,12 +679,10 @@ function fitTrack(track: Track, cols: SampleColumns, order: Uint32Array | undefi
     const current = meanOfPhases(ia[i] as number, ib[i] as number, ic[i] as number);
     const amps = current === current ? current : 0;
     const f = hz[i] === hz[i] ? (hz[i] as number) : hzPerRpm * speed;
-    const ohm = nameplate.phaseOhm * (1 + COPPER_TEMP_COEFF_PER_C * (windingC - COPPER_REF_C));
+    const ohm = windingOhm(nameplate.phaseOhm, windingC);
     const xOhm = 2 * Math.PI * f * henry;
-    let pf = 1;
-    const p = kw[i] as number;
-    if (amps > 0 && p === p) pf = Math.max(-1, Math.min(1, (p * 1000) / (SQRT3 * vll * amps)));
-    const emfLl = SQRT3 * recoverPhaseEmfFast(vll / SQRT3, amps, ohm, xOhm, pf);
+    const pf = loadPowerFactor(kw[i] as number, vll, amps);
+    const emfLl = lineEmfBehindTerminals(vll, amps, ohm, xOhm, pf);
     x[u] = xi;
     y[u] = emfLl;
     // The naive measure: terminal volts over the sensor's rpm, nothing corrected.

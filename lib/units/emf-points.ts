@@ -8,12 +8,10 @@
  */
 import type { DiagnosisNameplate } from '../diagnosis/diagnose';
 import { resolveLimits } from '../diagnosis/limits';
-import { SQRT3, recoverPhaseEmfFast } from '../physics/emf';
 import { keTemperatureFactor, remanenceCoeffPctPerC } from '../physics/magnet-temperature';
 import { meanOfPhases } from '../physics/phase-mean';
-import { powerFactorFromPower } from '../physics/power-factor';
 import { electricalHz } from '../physics/synchronous-speed';
-import { copperOhmAt, COPPER_REF_C } from '../physics/winding-resistance';
+import { lineEmfBehindTerminals, loadPowerFactor, magnetTempC, windingOhm, windingTempC } from '../diagnosis/sample-emf';
 
 /** The sample fields the chart needs (absent values null). */
 export interface EmfSample {
@@ -100,11 +98,13 @@ export function emfChart({
     if (speed >= speedFloorRpm) {
       const current = meanOfPhases(s.ia ?? Number.NaN, s.ib ?? Number.NaN, s.ic ?? Number.NaN);
       const amps = current === current ? current : 0;
-      const windingC = finite(s.statorC) ? s.statorC : finite(s.ambientC) ? s.ambientC : COPPER_REF_C;
-      const sampleMagnetC = finite(s.statorC) ? s.statorC : finite(s.ambientC) ? s.ambientC : nameplate.keRefC;
+      const statorC = s.statorC ?? Number.NaN;
+      const ambientC = s.ambientC ?? Number.NaN;
+      const sampleMagnetC = magnetTempC(statorC, ambientC, nameplate.keRefC);
       const hz = finite(s.hz) ? s.hz : electricalHz(nameplate.poles, speed);
-      const pf = amps > 0 && finite(s.kw) ? (powerFactorFromPower({ kw: s.kw, voltsLl: vll, currentA: amps }) ?? 1) : 1;
-      const emfLl = SQRT3 * recoverPhaseEmfFast(vll / SQRT3, amps, copperOhmAt(nameplate.phaseOhm, windingC), 2 * Math.PI * hz * henry, pf);
+      const ohm = windingOhm(nameplate.phaseOhm, windingTempC(statorC, ambientC));
+      const pf = loadPowerFactor(s.kw ?? Number.NaN, vll, amps);
+      const emfLl = lineEmfBehindTerminals(vll, amps, ohm, 2 * Math.PI * hz * henry, pf);
       // Past the coefficient's linear range keep the point out rather than divide by nothing.
       const sampleFactor = 1 + (coeff / 100) * (sampleMagnetC - nameplate.keRefC);
       if (sampleFactor > 0.05) correctedV = (emfLl * chartFactor) / sampleFactor;
