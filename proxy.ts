@@ -11,7 +11,7 @@ import { getDatabase } from './db/client';
 import { isApiPath, meetsNeed, needOfPath, safeNextPath } from './lib/auth/access';
 import { contentSecurityPolicy, newNonce, SECURITY_HEADERS } from './lib/auth/csp';
 import { sameOriginRequest } from './lib/auth/csrf';
-import { PATH_HEADER, resolveCredentials, sessionTokenOf, SIGN_IN_REQUIRED } from './lib/auth/request';
+import { mustChangeFirst, PATH_HEADER, resolveCredentials, sessionTokenOf, SIGN_IN_REQUIRED } from './lib/auth/request';
 
 function withHeaders(response: NextResponse, csp: string): NextResponse {
   response.headers.set('Content-Security-Policy', csp);
@@ -53,6 +53,12 @@ export async function proxy(request: NextRequest) {
       const to = new URL('/sign-in', request.url);
       to.searchParams.set('next', safeNextPath(pathname + search));
       return withHeaders(NextResponse.redirect(to, request.method === 'GET' || request.method === 'HEAD' ? 302 : 303), csp);
+    }
+    if (viewer !== undefined && mustChangeFirst(viewer, pathname) && request.method === 'GET') {
+      // Before anything else, a password someone else set is replaced (answered here, before the page streams).
+      const to = new URL('/account/password', request.url);
+      to.searchParams.set('next', safeNextPath(pathname + search));
+      return withHeaders(NextResponse.redirect(to, 302), csp);
     }
     if (viewer !== undefined && !meetsNeed(viewer, need)) {
       return refuse(api, 403, 'forbidden', need === 'admin' ? 'Only an administrator may open this page.' : 'Only an administrator or operator may change the setup.', csp);

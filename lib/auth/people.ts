@@ -86,7 +86,16 @@ export async function siteIdsOfPerson({ db, person }: { db: Db; person: Pick<Per
 
 /** The viewer a signed-in person is. */
 export async function viewerOfPerson({ db, person, via, ip }: { db: Db; person: PersonRow; via: 'session' | 'token'; ip?: string }): Promise<Viewer> {
-  return { id: `person:${person.id}`, personId: person.id, email: person.email, role: person.role, siteIds: await siteIdsOfPerson({ db, person }), via, ...(ip ? { ip } : {}) };
+  return {
+    id: `person:${person.id}`,
+    personId: person.id,
+    email: person.email,
+    role: person.role,
+    siteIds: await siteIdsOfPerson({ db, person }),
+    via,
+    ...(ip ? { ip } : {}),
+    ...(person.mustChangePassword ? { mustChangePassword: true } : {}),
+  };
 }
 
 async function checkSites(db: Db, role: Role, siteIds: readonly string[]): Promise<string | undefined> {

@@ -86,6 +86,15 @@ export async function resolveCredentials({
   return undefined;
 }
 
+/**
+ * Whether a page must lead to the password form first: a signed-in person
+ * whose password someone else set, on any page but that form (API calls with
+ * a token are not held up).
+ */
+export function mustChangeFirst(viewer: Viewer, path: string): boolean {
+  return viewer.via === 'session' && viewer.mustChangePassword === true && !isApiPath(path.split('?')[0]!) && !path.startsWith('/account/password');
+}
+
 /** The "not signed in" answer: a redirect to sign-in on pages and actions, a 401 under /api. */
 export async function notSignedIn(path: string): Promise<never> {
   if (isApiPath(path.split('?')[0]!)) {
@@ -104,12 +113,9 @@ export async function viewerOfRequest(): Promise<Viewer> {
   const { db } = await getDatabase();
   const found = await resolveCredentials({ db, headers: h, sessionToken: sessionTokenOf(h, (n) => jar.get(n)?.value) });
   if (found !== undefined && found !== 'invalid') {
-    if (found.via === 'session' && !path.startsWith('/account/password')) {
-      const { mustChangePasswordOf } = await import('./must-change');
-      if (await mustChangePasswordOf({ db, personId: found.personId! })) {
-        const { redirect } = await import('next/navigation');
-        redirect(`/account/password?next=${encodeURIComponent(safeNextPath(path))}`);
-      }
+    if (mustChangeFirst(found, path)) {
+      const { redirect } = await import('next/navigation');
+      redirect(`/account/password?next=${encodeURIComponent(safeNextPath(path))}`);
     }
     return found;
   }

@@ -25,6 +25,8 @@ export interface Viewer {
   readonly via?: 'local' | 'session' | 'token' | 'display';
   /** The address the request came from, for the audit log. */
   readonly ip?: string;
+  /** The person's password was set by someone else: they must choose their own before anything else. */
+  readonly mustChangePassword?: boolean;
 }
 
 /** The viewer of tests, benches and command-line tools: sees and may change everything. */

@@ -1,8 +1,6 @@
 import type { Metadata } from 'next';
 import { safeNextPath } from '../../../lib/auth/access';
 import { currentViewer } from '../../../lib/auth/viewer';
-import { mustChangePasswordOf } from '../../../lib/auth/must-change';
-import { getDatabase } from '../../../db/client';
 import styles from '../account.module.css';
 import { PasswordChangeForm } from './password-form';
 
@@ -13,8 +11,7 @@ export default async function PasswordPage({ searchParams }: { searchParams: Pro
   const viewer = await currentViewer();
   const raw = (await searchParams).next;
   const next = safeNextPath(typeof raw === 'string' ? raw : '/');
-  const { db } = await getDatabase();
-  const must = viewer.personId !== undefined && (await mustChangePasswordOf({ db, personId: viewer.personId }));
+  const must = viewer.mustChangePassword === true;
   return (
     <div className={styles.narrow}>
       <h1>Your password</h1>
