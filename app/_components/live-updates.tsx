@@ -125,6 +125,10 @@ export function LiveUpdates({ siteId, unitId, unitNames }: { siteId: string; uni
       // Back from a pause: catch up with whatever changed meanwhile.
       setStatus('connecting');
       refreshSoon();
+    } else if (pendingRefresh.current !== undefined) {
+      // Pausing holds the page as it is: a refresh still waiting for its turn is dropped (resuming catches up).
+      clearTimeout(pendingRefresh.current);
+      pendingRefresh.current = undefined;
     }
     setPaused(!paused);
   };

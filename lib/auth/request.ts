@@ -4,6 +4,7 @@
  * `x-millrace-client-ip` and the proxy (proxy.ts) the request's path in
  * `x-millrace-path`, both overwriting whatever a client sent.
  */
+import { cache } from 'react';
 import { getDatabase, type Db } from '../../db/client';
 import { getConfig } from '../config/env';
 import { AppError } from '../errors/app-error';
@@ -104,14 +105,24 @@ export async function notSignedIn(path: string): Promise<never> {
   return redirect(`/sign-in?next=${encodeURIComponent(safeNextPath(path))}`);
 }
 
-/** The viewer of the current Next request (see currentViewer in ./viewer). */
-export async function viewerOfRequest(): Promise<Viewer> {
+/**
+ * The credentials of the current Next request, resolved once per render: the
+ * page, its layout's account bar and the components read the same answer
+ * (React's cache lasts one server render; route handlers and actions resolve
+ * it each call).
+ */
+const credentialsOfThisRequest = cache(async () => {
   const { cookies, headers } = await import('next/headers');
   const h = await headers();
   const jar = await cookies();
-  const path = h.get(PATH_HEADER) ?? '/';
   const { db } = await getDatabase();
   const found = await resolveCredentials({ db, headers: h, sessionToken: sessionTokenOf(h, (n) => jar.get(n)?.value) });
+  return { found, path: h.get(PATH_HEADER) ?? '/' };
+});
+
+/** The viewer of the current Next request (see currentViewer in ./viewer). */
+export async function viewerOfRequest(): Promise<Viewer> {
+  const { found, path } = await credentialsOfThisRequest();
   if (found !== undefined && found !== 'invalid') {
     if (mustChangeFirst(found, path)) {
       const { redirect } = await import('next/navigation');
@@ -127,11 +138,7 @@ export async function viewerOfRequest(): Promise<Viewer> {
 /** The signed-in person of the current request, or undefined; never redirects (for the header's "signed in as"). */
 export async function signedInViewer(): Promise<Viewer | undefined> {
   try {
-    const { cookies, headers } = await import('next/headers');
-    const h = await headers();
-    const jar = await cookies();
-    const { db } = await getDatabase();
-    const found = await resolveCredentials({ db, headers: h, sessionToken: sessionTokenOf(h, (n) => jar.get(n)?.value) });
+    const { found } = await credentialsOfThisRequest();
     return found === 'invalid' ? undefined : found;
   } catch {
     return undefined;
