@@ -539,9 +539,9 @@ export function diagnoseSamples(input: DiagnoseInput): DiagnosisResult {
 /** Readable names of the magnet materials. */
 const MAGNET_WORDS: Record<MagnetMaterial, string> = { ndfeb: 'NdFeB', smco: 'SmCo', ferrite: 'Ferrite' };
 
-/** ISO-8601 UTC without milliseconds when they are zero. */
+/** A time for prose: "2026-12-02 13:30:23 UTC" (to the second; the site's zone is the screen's business). */
 function isoTime(ms: number): string {
-  return new Date(ms).toISOString().replace('.000Z', 'Z');
+  return `${new Date(ms).toISOString().slice(0, 19).replace('T', ' ')} UTC`;
 }
 
 /** Samples above the overspeed limit: how many, the highest, the time above. */

@@ -156,3 +156,12 @@ describe('what the findings tell a crew', () => {
     }
   });
 });
+
+describe('overspeed times', () => {
+  it('are written for people: date, time to the second and UTC', () => {
+    const samples = syntheticSamples({ speedShare: (i) => (i === 6 ? 1.5 : 0.3 + (0.9 * i) / 719), noise: 0, startMs: Date.UTC(2026, 2, 1, 0, 0, 0) });
+    const f = diagnoseSamples({ nameplate: TEST_NAMEPLATE, samples }).findings.find((x) => x.code === 'overspeed')!;
+    // Sample 6 is 60 s after the start.
+    expect(f.message).toContain('at 2026-03-01 00:01:00 UTC');
+  });
+});

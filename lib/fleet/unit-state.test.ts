@@ -74,6 +74,17 @@ describe('unitStateOf', () => {
     });
     expect(notEnough.state).toBe('not-judged');
     expect(notEnough.label).toBe('Not enough running data');
+    // The reason is the diagnosis's own first sentence, so a unit held at one speed says so.
+    expect(notEnough.reason).toBe('Only 3 samples.');
+    const steady = unitStateOf({
+      health: {
+        verdict: 'insufficient-data',
+        findings: [{ code: 'insufficient-data', severity: 'warning', message: 'The unit ran at one steady speed: x. Next steps: Judge it from a log with a start-up.' }],
+      },
+      lastSampleMs: fresh,
+      nowMs: now,
+    });
+    expect(steady.reason).toBe('The unit ran at one steady speed: x.');
   });
 
   it('sorts worst first, an offline unit last judged faulty before other offline units', () => {

@@ -3,7 +3,8 @@
  * its latest diagnosis and how long ago its last sample arrived. Pure: the
  * queries feed it, the screens and the read API show it.
  */
-import { NOT_JUDGED_LABEL, noDataLabel, VERDICT_BASIS, verdictLabel } from '../diagnosis/vocabulary';
+import { splitFindingMessage } from '../diagnosis/findings';
+import { findingTitle, NOT_JUDGED_LABEL, noDataLabel, VERDICT_BASIS, verdictLabel } from '../diagnosis/vocabulary';
 
 /** Unit states, worst first: the order of the fleet's counts and of every sort by state. */
 export const UNIT_STATES = ['fault', 'warning', 'no-data', 'not-judged', 'healthy'] as const;
@@ -64,6 +65,12 @@ function firstFinding(health: HealthSummary, severity: string) {
   return health.findings.find((f) => f.severity === severity && f.code !== 'insufficient-data');
 }
 
+/** Why a unit has no verdict, in the diagnosis's own words (one steady speed, or too few samples). */
+function insufficientReason(health: HealthSummary): string {
+  const f = health.findings.find((x) => x.code === 'insufficient-data');
+  return f === undefined ? 'Not enough running data for a verdict yet.' : shortReason(f.message);
+}
+
 /** The first sentence of a finding's message, for a one-line reason. */
 export function firstSentence(message: string): string {
   const m = /^(.+?[.!?])(\s|$)/.exec(message);
@@ -79,39 +86,10 @@ const REASON_MAX = 160;
  * @example shortReason('Ke is 0.91 of nameplate. Check it.') // 'Ke is 0.91 of nameplate.'
  */
 export function shortReason(message: string): string {
-  const first = firstSentence(message);
+  const first = firstSentence(splitFindingMessage(message).observation);
   if (first.length <= REASON_MAX) return first;
   const cut = Math.max(first.lastIndexOf(';', REASON_MAX), first.lastIndexOf(',', REASON_MAX), first.lastIndexOf(' (', REASON_MAX));
   return `${first.slice(0, cut > 60 ? cut : REASON_MAX).trimEnd()} …`;
-}
-
-/**
- * A finding code in words, for a badge.
- * @example codeWords('overspeed') // 'Overspeed'
- */
-export function codeWords(code: string): string {
-  const words = code.replace(/-/g, ' ');
-  return words.charAt(0).toUpperCase() + words.slice(1);
-}
-
-/** Badge words of the findings that can make a unit's state (others fall back to their code in words). */
-const FINDING_LABEL: Record<string, string> = {
-  overspeed: 'Overspeed',
-  'speed-sensor-fault': 'Speed sensor suspect',
-  'ke-low': 'Ke below the warning line',
-  'ke-above-nameplate': 'Ke above nameplate',
-  'magnets-with-frequency-speed': 'Ke low (speed from frequency)',
-  'no-voltage-at-speed': 'No voltage while turning',
-  'shorted-turns': 'Unbalance above the line',
-  demagnetised: 'Magnets weakened',
-};
-
-/**
- * The badge words of a finding code.
- * @example findingLabel('no-voltage-at-speed') // 'No voltage while turning'
- */
-export function findingLabel(code: string): string {
-  return FINDING_LABEL[code] ?? codeWords(code);
 }
 
 /** What a fault verdict rests on, when no finding says more. */
@@ -156,20 +134,20 @@ export function unitStateOf({
     const top = alarm ?? firstFinding(health, 'warning');
     return {
       state: 'fault',
-      label: FAULT_VERDICTS.has(health.verdict) ? (last as string) : findingLabel((alarm as { code: string }).code),
+      label: FAULT_VERDICTS.has(health.verdict) ? (last as string) : findingTitle((alarm as { code: string }).code),
       reason: top ? shortReason(top.message) : `${last}: ${VERDICT_BASIS_TEXT[health.verdict] ?? 'see the unit’s findings'}.`,
       rank: 0,
     };
   }
   const warning = firstFinding(health, 'warning');
   if (warning !== undefined) {
-    return { state: 'warning', label: findingLabel(warning.code), reason: shortReason(warning.message), rank: 0 };
+    return { state: 'warning', label: findingTitle(warning.code), reason: shortReason(warning.message), rank: 0 };
   }
   if (health.verdict === 'insufficient-data') {
     return {
       state: 'not-judged',
       label: last as string,
-      reason: 'Not enough running data for a verdict yet (too little time above the speed floor).',
+      reason: insufficientReason(health),
       rank: 1,
     };
   }

@@ -3,8 +3,8 @@ import { notFound } from 'next/navigation';
 import { loadUnitScreen } from '../../../../../lib/units/screen';
 import { SERIES_FIELDS, SERIES_RANGES, SERIES_RANGE_KEYS, type SeriesField } from '../../../../../lib/units/queries';
 import type { SeriesBucket } from '../../../../../lib/charts/downsample';
-import { SAFETY_CAUTION } from '../../../../../lib/diagnosis/findings';
-import { VERDICT_BASIS } from '../../../../../lib/diagnosis/vocabulary';
+import { SAFETY_CAUTION, splitFindingMessage } from '../../../../../lib/diagnosis/findings';
+import { findingTitle, VERDICT_BASIS } from '../../../../../lib/diagnosis/vocabulary';
 import type { UnitState } from '../../../../../lib/fleet/unit-state';
 import { StateBadge, StateIcon } from '../../../../_components/state-badge';
 import { LocalTime } from '../../../../_components/local-time';
@@ -27,14 +27,6 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 
 const SEVERITY_STATE: Record<string, UnitState> = { alarm: 'fault', warning: 'warning', info: 'not-judged' };
 const SEVERITY_WORD: Record<string, string> = { alarm: 'Alarm', warning: 'Warning', info: 'Note' };
-
-/** A finding's words without the safety caution, and whether it carried it. */
-function splitCaution(message: string): { body: string; caution: boolean } {
-  const i = message.indexOf(SAFETY_CAUTION);
-  if (i >= 0) return { body: message.slice(0, i).trim(), caution: true };
-  const j = message.indexOf('Caution:');
-  return j > 0 ? { body: message.slice(0, j).trim(), caution: true } : { body: message, caution: false };
-}
 
 /** Which fields each time chart draws (the rollups keep the means of three lines and phases, not each). */
 function chartGroups(kind: 'wind' | 'hydro', raw: boolean) {
@@ -151,7 +143,7 @@ export default async function UnitPage({ params, searchParams }: Props) {
   const groups = chartGroups(unit.kind, raw).filter((g) => g.fields.some((f) => (series.series[f]?.length ?? 0) > 0));
   const sourceText = raw ? 'raw samples' : series.source === 'rollup-10m' ? '10-minute rollups' : 'daily rollups';
   const findings = health?.findings ?? [];
-  const anyCaution = findings.some((f) => splitCaution(f.message).caution);
+  const anyCaution = findings.some((f) => splitFindingMessage(f.message).caution);
 
   return (
     <>
@@ -207,13 +199,21 @@ export default async function UnitPage({ params, searchParams }: Props) {
             </p>
             <ul className="findings">
               {findings.map((f, i) => {
-                const { body, caution } = splitCaution(f.message);
+                const { observation, nextSteps, caution } = splitFindingMessage(f.message);
                 return (
                   <li key={i} data-code={f.code} data-severity={f.severity}>
                     <p className="finding-head">
                       <StateIcon state={SEVERITY_STATE[f.severity] ?? 'not-judged'} />
-                      <strong>{SEVERITY_WORD[f.severity] ?? f.severity}:</strong> <span>{body}</span>
+                      <strong>
+                        {SEVERITY_WORD[f.severity] ?? f.severity}: {findingTitle(f.code)}.
+                      </strong>{' '}
+                      <span>{observation}</span>
                     </p>
+                    {nextSteps === undefined ? null : (
+                      <p className="finding-next" data-testid="next-steps">
+                        <strong>Next steps:</strong> {nextSteps}
+                      </p>
+                    )}
                     {caution ? (
                       <p className="caution" data-testid="safety-caution">
                         {SAFETY_CAUTION}
