@@ -39,7 +39,7 @@ export default async function DataQualityPage({ searchParams }: { searchParams: 
   ]);
   const zoneOf = new Map(sites.map((s) => [s.id, s.timezone]));
   const filtered = query.site !== undefined || query.unit !== undefined;
-  const what = query.unit ? `unit ${query.unit}` : query.site ? `site ${query.site}` : 'every site';
+  const what = query.unit ? `unit ${query.unit}` : query.site ? `site ${query.site}` : 'all sites';
 
   return (
     <>
