@@ -15,11 +15,11 @@ import { resolveSession, sessionCookieName, type SessionTimes } from './sessions
 import type { Viewer } from './viewer';
 
 /**
- * Whether pages, actions and the API require a signed-in person. While false,
- * a request with no credentials is the local viewer (everything), as before
- * accounts existed; credentials given are still checked.
+ * Whether pages, actions and the API require a signed-in person (they do).
+ * Set to false, a request with no credentials would be the local viewer
+ * (everything), as before accounts existed.
  */
-export const SIGN_IN_REQUIRED = false;
+export const SIGN_IN_REQUIRED: boolean = true;
 
 export const CLIENT_IP_HEADER = 'x-millrace-client-ip';
 export const PATH_HEADER = 'x-millrace-path';

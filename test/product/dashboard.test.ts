@@ -44,6 +44,7 @@ describe.skipIf(skipUnless(chromium, 'dashboard screens in a browser'))('dashboa
 
   it('puts the faulty units first, each with its reason in words', async () => {
     const page = await browser.newPage();
+    await product.signIn(page);
     await fleetWithFaults(page);
     const worst = await page.locator('section.site').evaluateAll((els) => els.map((e) => e.getAttribute('data-worst')));
     const order = ['fault', 'warning', 'no-data', 'not-judged', 'healthy'];
@@ -65,7 +66,7 @@ describe.skipIf(skipUnless(chromium, 'dashboard screens in a browser'))('dashboa
       // The page's fault agrees with the read API: a fault verdict, or an alarm finding.
       const href = (await li.locator('a').getAttribute('href')) as string;
       const [, siteId, unitId] = /\/sites\/([^/]+)\/units\/([^/]+)$/.exec(href) ?? [];
-      const health = (await (await fetch(`${product.url}/api/v1/units/${siteId}/${unitId}/health`)).json()) as {
+      const health = (await (await product.fetch(`${product.url}/api/v1/units/${siteId}/${unitId}/health`)).json()) as {
         verdict: string;
         findings: Array<{ severity: string }>;
       };
@@ -80,13 +81,14 @@ describe.skipIf(skipUnless(chromium, 'dashboard screens in a browser'))('dashboa
 
   it('leads from the fleet to a site and a unit; the unit shows its evidence, findings and caution', async () => {
     const page = await browser.newPage();
+    await product.signIn(page);
     await fleetWithFaults(page);
     // A unit whose verdict is a fault of the machine (so its findings send a crew).
     let target: { siteId: string; unitId: string } | undefined;
     for (const li of await page.locator('.attention li[data-state="fault"]').all()) {
       const href = (await li.locator('a').getAttribute('href')) as string;
       const [, siteId, unitId] = /\/sites\/([^/]+)\/units\/([^/]+)$/.exec(href) ?? [];
-      const health = (await (await fetch(`${product.url}/api/v1/units/${siteId}/${unitId}/health`)).json()) as { verdict: string };
+      const health = (await (await product.fetch(`${product.url}/api/v1/units/${siteId}/${unitId}/health`)).json()) as { verdict: string };
       if (FAULT_VERDICTS.includes(health.verdict)) {
         target = { siteId: siteId as string, unitId: unitId as string };
         break;
@@ -119,7 +121,7 @@ describe.skipIf(skipUnless(chromium, 'dashboard screens in a browser'))('dashboa
     await expect(findings.locator('li[data-severity="alarm"]').count()).resolves.toBeGreaterThan(0);
     // The safety caution is on the page in full view, not folded away.
     const caution = findings.locator('[data-testid="safety-caution"]').first();
-    expect(await caution.isVisible()).toBe(true);
+    await caution.waitFor({ state: 'visible', timeout: 10_000 });
     await expect(caution.textContent()).resolves.toContain('makes voltage whenever its shaft turns');
     await expect(page.locator('[data-testid="diagnosed-when"]').textContent()).resolves.toMatch(/Diagnosed .* from the samples of .* to .*samples used/);
 
@@ -143,6 +145,7 @@ describe.skipIf(skipUnless(chromium, 'dashboard screens in a browser'))('dashboa
 
   it('does not scroll sideways at 360 px on any of the three screens', async () => {
     const page = await browser.newPage();
+    await product.signIn(page);
     await page.setViewportSize({ width: 360, height: 780 });
     await fleetWithFaults(page);
     expect(await scrollsSideways(page)).toBe(false);

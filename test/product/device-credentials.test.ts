@@ -45,6 +45,7 @@ describe.skipIf(realBrokerUrl !== undefined || skipUnless(chromium, 'device cred
     brokerUrl = `mqtt://127.0.0.1:${product.env.MQTT_PORT}`;
     browser = await launchBrowser();
     page = await browser.newPage();
+    await product.signIn(page);
   }, 300_000);
 
   afterAll(async () => {

@@ -14,7 +14,7 @@ afterAll(async () => {
 
 describe('npm start with the demo fleet off', () => {
   it('serves the empty fleet list from the database, saying how to register units', async () => {
-    const html = await (await fetch(product.url)).text();
+    const html = await (await product.fetch(product.url)).text();
     expect(html).toContain('No units registered yet');
     expect(html).toContain('npx millrace units import FLEET.json');
   });

@@ -41,6 +41,7 @@ describe.skipIf(skipUnless(chromium, 'live updates in a browser'))('live updates
     product = await startProductProcess({ DEMO: 'off', DIAGNOSIS_INTERVAL_S: '2', ...prepared.env });
     browser = await launchBrowser();
     page = await browser.newPage();
+    await product.signIn(page);
     device = await mqtt.connectAsync(product.env.MQTT_URL ?? `mqtt://127.0.0.1:${product.env.MQTT_PORT}`, {
       clientId: `live-device-${tag}`,
       ...prepared.credentials.get(`${unit.siteId}/${unit.id}`),

@@ -33,13 +33,14 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
   const shoot = async (name: string) => {
     for (const width of await screenshots(page, name)) sideways.push(`${name} at ${width} px`);
   };
-  const fleetNow = async () => (await (await fetch(`${product.url}/setup/export`)).json()) as { sites: Array<{ id: string }>; units: Array<{ id: string; poles: number }> };
+  const fleetNow = async () => (await (await product.fetch(`${product.url}/setup/export`)).json()) as { sites: Array<{ id: string }>; units: Array<{ id: string; poles: number }> };
 
   beforeAll(async () => {
     prepared = await prepareProduct(sender, [senderUnit]);
     product = await startProductProcess({ DEMO: 'off', ...prepared.env });
     browser = await launchBrowser();
     page = await browser.newPage();
+    await product.signIn(page);
   }, 300_000);
 
   afterAll(async () => {
@@ -50,6 +51,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
 
   it('lists the sites and units registered before, with what can be done', async () => {
     await page.goto(`${product.url}/setup`);
+    await page.locator('main h1').waitFor();
     await expect(page.locator('h1').textContent()).resolves.toBe('Setup');
     const main = (await page.locator('main').textContent())!;
     expect(main).toContain(sender.sites[0]!.name);
@@ -62,13 +64,13 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     await page.fill('#field-id', site.id);
     await page.fill('#field-name', site.name);
     await page.fill('#field-timezone', 'Mars/Olympus');
-    await page.click('button[type=submit]');
+    await page.click('main button[type=submit]');
     await page.waitForSelector('#field-timezone-error');
     await expect(page.locator('#field-timezone-error').textContent()).resolves.toContain('must be an IANA time zone such as Europe/Oslo, got "Mars/Olympus"');
     await expect(page.locator('#field-name').inputValue()).resolves.toBe(site.name);
     await shoot('setup-site-invalid');
     await page.fill('#field-timezone', site.timezone);
-    await page.click('button[type=submit]');
+    await page.click('main button[type=submit]');
     await page.waitForURL(`**/setup/sites/${site.id}?saved=created`);
     await expect(page.locator('[role=status]').first().textContent()).resolves.toContain('Site added');
     await shoot('setup-site-edit');
@@ -87,7 +89,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     await page.fill('#field-cutOutMs', '24');
     await page.fill('#field-rotorDiameterM', '5.5');
     await page.fill('#field-powerCurve', '3 0.1\n7 2\n11 6');
-    await page.click('button[type=submit]');
+    await page.click('main button[type=submit]');
     await page.waitForSelector('#field-poles-error');
     // Beside the field, tied to it, and the field takes focus.
     await expect(page.locator('#field-poles-error').textContent()).resolves.toBe('must be an even number, got 7');
@@ -102,7 +104,7 @@ describe.skipIf(skipUnless(chromium, 'setup screens in a browser'))('setup scree
     await shoot('setup-unit-invalid');
 
     await page.fill('#field-poles', '18');
-    await page.click('button[type=submit]');
+    await page.click('main button[type=submit]');
     await page.waitForURL(`**/setup/units/${site.id}/${unitId}?saved=created`);
     await expect(page.locator('[role=status]').first().textContent()).resolves.toContain('Unit added');
     await expect(page.locator('#field-poles').inputValue()).resolves.toBe('18');

@@ -33,7 +33,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
   it('reports database, broker and ingester state at /api/health', async () => {
     const health = await eventually(
       async () => {
-        const res = await fetch(`${product.url}/api/health`);
+        const res = await product.fetch(`${product.url}/api/health`);
         const body = (await res.json()) as Health;
         const broker = body.components.ingester?.broker as { connected?: number } | undefined;
         return (broker?.connected ?? 0) >= 1 ? body : undefined;
@@ -50,7 +50,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
   it('stores the demo fleet telemetry that went through the broker', async () => {
     const committed = await eventually(
       async () => {
-        const body = (await (await fetch(`${product.url}/api/health`)).json()) as Health;
+        const body = (await (await product.fetch(`${product.url}/api/health`)).json()) as Health;
         const counters = body.components.ingester?.counters as { rowsCommitted?: number } | undefined;
         const rows = counters?.rowsCommitted ?? 0;
         return rows > 50 ? rows : undefined;
@@ -63,6 +63,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
 
   it.skipIf(skipUnless(chromium, 'fleet list in a browser'))('shows the fleet list in a browser', async () => {
     const page = await browser.newPage();
+    await product.signIn(page);
     await eventually(
       async () => {
         await page.goto(product.url, { waitUntil: 'load' });
@@ -90,7 +91,7 @@ describe(`npm start (${realDatabaseUrl ? 'PostgreSQL' : 'embedded PGlite'}, ${re
     await client.endAsync();
     const html = await eventually(
       async () => {
-        const text = await (await fetch(product.url)).text();
+        const text = await (await product.fetch(product.url)).text();
         return text.includes('vab: expected a number of volts') ? text : undefined;
       },
       30_000,

@@ -7,6 +7,8 @@ import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { freePort } from '../../lib/server/ports';
+import type { Page } from 'playwright-core';
+import { addTestAccount, signInPage, TEST_ADMIN, type TestAccount } from './accounts';
 import { createPostgresDatabase, realBrokerUrl, realDatabaseUrl } from './backend';
 
 export interface RunningProduct {
@@ -15,10 +17,20 @@ export interface RunningProduct {
   env: Record<string, string>;
   output(): string;
   stop(): Promise<void>;
+  /** The admin made before the start (test/support/accounts.ts), unless asked for nobody. */
+  admin?: TestAccount;
+  /** fetch() with the admin's API token (`path` a full URL or a path of the product). */
+  fetch(path: string, init?: RequestInit): Promise<Response>;
+  /** Signs the page's browser context in as the admin. */
+  signIn(page: Page): Promise<void>;
 }
 
 /** Starts millrace; resolves when it prints its URL (the first start also builds the app). */
-export async function startProductProcess(extraEnv: Record<string, string> = {}, timeoutMs = 240_000): Promise<RunningProduct> {
+export async function startProductProcess(
+  extraEnv: Record<string, string> = {},
+  timeoutMs = 240_000,
+  { account = true }: { account?: boolean } = {},
+): Promise<RunningProduct> {
   const dir = mkdtempSync(join(tmpdir(), 'millrace-product-'));
   const port = await freePort();
   const env: Record<string, string> = {
@@ -40,6 +52,8 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
     dropDb = created.drop;
   }
   if (realBrokerUrl && extraEnv.MQTT_URL === undefined) env.MQTT_URL = realBrokerUrl;
+  // Sign-in is required: an admin (and a token) made the way an operator would, before the start.
+  const admin = account ? await addTestAccount(env, { ...TEST_ADMIN, role: 'admin' }) : undefined;
   const childEnv: NodeJS.ProcessEnv = { ...process.env, ...env };
   if (!env.DATABASE_URL) delete childEnv.DATABASE_URL;
   if (!env.MQTT_URL) delete childEnv.MQTT_URL;
@@ -92,6 +106,16 @@ export async function startProductProcess(extraEnv: Record<string, string> = {},
     url,
     port,
     env,
+    admin,
+    fetch: (path, init = {}) => {
+      const headers = new Headers(init.headers);
+      if (admin && !headers.has('authorization')) headers.set('authorization', `Bearer ${admin.token}`);
+      return fetch(path.startsWith('http') ? path : `${url}${path}`, { ...init, headers });
+    },
+    signIn: async (page) => {
+      if (!admin) throw new Error('this product was started with nobody to sign in as');
+      await signInPage(page, url, admin);
+    },
     output: () => output,
     stop: async () => {
       if (child.exitCode === null) {
