@@ -205,7 +205,8 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
     // The hydro unit was online while it sent; now it stops, and its state must change.
     const hydro = fleet.units[3]!.id;
     expect(byId.get(hydro)?.presence).toBe('online');
-    const onlineAt = byId.get(hydro)!.presence_at!.getTime();
+    // postgres-js gives a timestamp as text through a raw query, PGlite as a Date.
+    const onlineAt = new Date(byId.get(hydro)!.presence_at!).getTime();
     const updates = ingester.state().counters.presenceUpdates;
     const publisher = await openPublisher(broker.url, { mqtt5: broker.mqtt5 });
     await publisher.publishAll([{ topic: `millrace/${hydroSite}/${hydro}/presence`, payload: 'offline', retain: true }]);
@@ -217,7 +218,7 @@ describe(`rollups equal a recomputation from raw samples (${backendDescription()
       [hydro],
     );
     expect(after!.presence).toBe('offline');
-    expect(after!.presence_at!.getTime()).toBeGreaterThanOrEqual(onlineAt);
+    expect(new Date(after!.presence_at!).getTime()).toBeGreaterThanOrEqual(onlineAt);
     fleet.units.forEach((unit, u) => {
       const s = series(u);
       expect(Number(byId.get(unit.id)?.last)).toBe(s[s.length - 1]!.ts);
