@@ -8,10 +8,9 @@
  * cross-origin POST is refused, and SQL and script text in names and
  * addresses is stored and shown as text.
  *
- * Pages render inside a loading boundary, so Next has sent 200 before a
- * page can say "not found"; such a page counts as 404 when it is the
- * not-found page (its heading and noindex), the same for a missing site and
- * one the caller may not see.
+ * A page that says "not found" answers with the status 404 itself (no
+ * loading boundary above the pages, so Next has not sent 200 before the page
+ * decides), the same for a missing site and one the caller may not see.
  */
 import { readdirSync, statSync } from 'node:fs';
 import { join, relative, sep } from 'node:path';
@@ -131,9 +130,7 @@ async function request(url: string, caller: Caller, init: RequestInit = {}): Pro
   // An event stream never ends: its status and headers are the answer.
   const body = response.headers.get('content-type')?.startsWith('text/event-stream') ? '' : await response.text();
   controller.abort();
-  // Next marks its not-found page with exactly this tag (a display page's own robots tag reads "noindex, nofollow").
-  const notFoundPage = response.status === 200 && body.includes('Nothing here') && body.includes('<meta name="robots" content="noindex"/>');
-  return { status: notFoundPage ? 404 : response.status, body, location: response.headers.get('location') };
+  return { status: response.status, body, location: response.headers.get('location') };
 }
 
 beforeAll(async () => {
