@@ -1,9 +1,9 @@
 import type { Metadata } from 'next';
 import { QUARANTINE_COUNT_CAP } from '../lib/fleet/queries';
 import { loadFleetScreen } from '../lib/fleet/overview';
-import { UNIT_STATES, UNIT_STATE_NAME, sinceText } from '../lib/fleet/unit-state';
+import { UNIT_STATES, sinceText } from '../lib/fleet/unit-state';
 import { SAFETY_CAUTION } from '../lib/diagnosis/findings';
-import { StateBadge, StateIcon } from './_components/state-badge';
+import { StateBadge, StateCounts } from './_components/state-badge';
 import { LocalTime } from './_components/local-time';
 import { ago, formatEnergyKwh, formatPowerKw } from './_components/format';
 
@@ -33,13 +33,7 @@ export default async function FleetPage() {
             {unitCount} unit{unitCount === 1 ? '' : 's'} on {fleet.sites.length} site{fleet.sites.length === 1 ? '' : 's'}:{' '}
             {attention === 0 ? <strong>all healthy</strong> : <strong>{attention} need attention</strong>}
           </p>
-          <ul className="state-counts" aria-label="Units in each state, whole fleet">
-            {UNIT_STATES.map((s) => (
-              <li key={s} className={totals[s] === 0 ? 'zero' : undefined}>
-                <StateIcon state={s} /> {UNIT_STATE_NAME[s]} <strong>{totals[s]}</strong>
-              </li>
-            ))}
-          </ul>
+          <StateCounts counts={totals} label="Units in each state, whole fleet" />
         </div>
         {fleet.demo && fleet.demo.status !== 'off' ? (
           <p className="note">Demo fleet (invented sites and units): {fleet.demo.phase ?? fleet.demo.status}.</p>
@@ -72,13 +66,7 @@ export default async function FleetPage() {
                   {site.unitCount} unit{site.unitCount === 1 ? '' : 's'}
                 </span>
               </h2>
-              <ul className="state-counts" aria-label={`Units in each state at ${site.name}`}>
-                {UNIT_STATES.map((s) => (
-                  <li key={s} className={site.counts[s] === 0 ? 'zero' : undefined}>
-                    <StateIcon state={s} /> {UNIT_STATE_NAME[s]} <strong>{site.counts[s]}</strong>
-                  </li>
-                ))}
-              </ul>
+              <StateCounts counts={site.counts} label={`Units in each state at ${site.name}`} />
               <dl className="figures">
                 <div>
                   <dt>Power now</dt>

@@ -1,4 +1,4 @@
-import type { UnitState } from '../../lib/fleet/unit-state';
+import { UNIT_STATES, UNIT_STATE_NAME, type UnitState } from '../../lib/fleet/unit-state';
 
 /**
  * One shape per state, so a state reads without colour: an octagon for a
@@ -66,5 +66,18 @@ export function StateIcon({ state }: { state: UnitState }) {
     <span className={`state-icon state-${state}`}>
       <StateShape state={state} />
     </span>
+  );
+}
+
+/** How many units are in each state, every state listed (a zero greyed), in the fixed order worst first. */
+export function StateCounts({ counts, label }: { counts: Readonly<Record<UnitState, number>>; label: string }) {
+  return (
+    <ul className="state-counts" aria-label={label}>
+      {UNIT_STATES.map((s) => (
+        <li key={s} className={counts[s] === 0 ? 'zero' : undefined}>
+          <StateIcon state={s} /> {UNIT_STATE_NAME[s]} <strong>{counts[s]}</strong>
+        </li>
+      ))}
+    </ul>
   );
 }

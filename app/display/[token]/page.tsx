@@ -1,8 +1,7 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { loadDisplayScreen } from '../../../lib/fleet/display';
-import { UNIT_STATES, UNIT_STATE_NAME } from '../../../lib/fleet/unit-state';
-import { StateBadge, StateIcon } from '../../_components/state-badge';
+import { StateBadge, StateCounts } from '../../_components/state-badge';
 import { ago, formatEnergyKwh, formatPowerKw } from '../../_components/format';
 
 export const dynamic = 'force-dynamic';
@@ -81,13 +80,7 @@ export default async function DisplayPage({ params }: { params: Promise<{ token:
         {fleet.sites.map((site) => (
           <section key={site.id} className={`site${site.worst === 'fault' ? ' panel-fault' : site.worst === 'warning' ? ' panel-warning' : ''}`} aria-labelledby={`site-${site.id}`}>
             <h2 id={`site-${site.id}`}>{site.name}</h2>
-            <ul className="state-counts" aria-label={`Units in each state, ${site.name}`}>
-              {UNIT_STATES.map((s) => (
-                <li key={s} className={site.counts[s] === 0 ? 'zero' : undefined}>
-                  <StateIcon state={s} /> {UNIT_STATE_NAME[s]} <strong>{site.counts[s]}</strong>
-                </li>
-              ))}
-            </ul>
+            <StateCounts counts={site.counts} label={`Units in each state, ${site.name}`} />
             <dl className="figures">
               <div>
                 <dt>Power now</dt>
