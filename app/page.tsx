@@ -1,8 +1,8 @@
 import type { Metadata } from 'next';
-import { QUARANTINE_COUNT_CAP } from '../lib/fleet/queries';
-import { loadFleetScreen } from '../lib/fleet/overview';
-import { UNIT_STATES, sinceText } from '../lib/fleet/unit-state';
-import { SAFETY_CAUTION } from '../lib/diagnosis/findings';
+import { QUARANTINE_COUNT_CAP } from '@/lib/fleet/queries';
+import { loadFleetScreen } from '@/lib/fleet/overview';
+import { UNIT_STATES, sinceText } from '@/lib/fleet/unit-state';
+import { SAFETY_CAUTION } from '@/lib/diagnosis/findings';
 import { StateBadge, StateCounts } from './_components/state-badge';
 import { LocalTime } from './_components/local-time';
 import { ago, formatEnergyKwh, formatPowerKw } from './_components/format';

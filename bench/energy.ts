@@ -11,9 +11,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { once } from 'node:events';
-import { main } from '../lib/cli/main';
-import { energySamplesFrom } from '../lib/energy/energy-samples';
-import { monthlyEnergy } from '../lib/energy/monthly-energy';
+import { main } from '@/lib/cli/main';
+import { energySamplesFrom } from '@/lib/energy/energy-samples';
+import { monthlyEnergy } from '@/lib/energy/monthly-energy';
 
 const rows = Number(process.argv[2] ?? 1_000_000);
 if (!Number.isInteger(rows) || rows < 2) throw new RangeError(`ROWS must be a whole number of 2 or more, got ${process.argv[2]}`);

@@ -25,11 +25,11 @@
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import postgres from 'postgres';
-import { openDatabase, type DatabaseHandle } from '../db/client';
-import { ensureMonthlyPartitions } from '../db/partitions';
-import { createPostgresDatabase } from '../test/support/backend';
-import { ingestCommand, openPublisher, registerFleet, spawnIngester, testFleet, type Outgoing } from '../test/support/ingest';
-import { startMosquitto, type TestMosquitto } from '../test/support/mosquitto';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { ensureMonthlyPartitions } from '@/db/partitions';
+import { createPostgresDatabase } from '@/test/support/backend';
+import { ingestCommand, openPublisher, registerFleet, spawnIngester, testFleet, type Outgoing } from '@/test/support/ingest';
+import { startMosquitto, type TestMosquitto } from '@/test/support/mosquitto';
 
 const samples = Number(process.argv[2] ?? 1_000_000);
 const unitCount = Number(process.argv[3] ?? 200);

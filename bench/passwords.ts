@@ -4,10 +4,10 @@
  * the hash check, a session) on an in-memory PGlite. Prints median and worst
  * of a few runs; no target, figures for DEVELOPERS.md.
  */
-import { openDatabase } from '../db/client';
-import { hashPassword, verifyPassword } from '../lib/auth/passwords';
-import { addPerson } from '../lib/auth/people';
-import { signIn } from '../lib/auth/sign-in';
+import { openDatabase } from '@/db/client';
+import { hashPassword, verifyPassword } from '@/lib/auth/passwords';
+import { addPerson } from '@/lib/auth/people';
+import { signIn } from '@/lib/auth/sign-in';
 
 const RUNS = 5;
 

@@ -20,10 +20,10 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { sql } from 'drizzle-orm';
-import { openDatabase, rowsOf, type DatabaseHandle } from '../db/client';
-import { LOCAL_VIEWER } from '../lib/auth/viewer';
-import { readFleetScreen, readSiteScreen } from '../lib/fleet/overview';
-import { readUnitScreen } from '../lib/units/screen';
+import { openDatabase, rowsOf, type DatabaseHandle } from '@/db/client';
+import { LOCAL_VIEWER } from '@/lib/auth/viewer';
+import { readFleetScreen, readSiteScreen } from '@/lib/fleet/overview';
+import { readUnitScreen } from '@/lib/units/screen';
 
 const unitCount = Number(process.argv[2] ?? 1000);
 const days = Number(process.argv[3] ?? 90);

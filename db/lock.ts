@@ -5,7 +5,7 @@
  */
 import { closeSync, mkdirSync, openSync, readFileSync, rmSync, writeSync } from 'node:fs';
 import { join } from 'node:path';
-import { AppError } from '../lib/errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 
 export const LOCK_FILE = 'millrace.lock';
 

@@ -2,7 +2,7 @@
  * `npm run db:migrate`: applies the committed migrations to the configured
  * database (DATABASE_URL, else the embedded one) and makes partitions ahead.
  */
-import { getConfig } from '../lib/config/env';
+import { getConfig } from '@/lib/config/env';
 import { openDatabase } from './client';
 
 try {

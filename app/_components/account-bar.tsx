@@ -1,7 +1,7 @@
 import { headers } from 'next/headers';
-import { PATH_HEADER, signedInViewer } from '../../lib/auth/request';
-import { canAdminPeople } from '../../lib/auth/viewer';
-import { signOutAction } from '../sign-in/actions';
+import { PATH_HEADER, signedInViewer } from '@/lib/auth/request';
+import { canAdminPeople } from '@/lib/auth/viewer';
+import { signOutAction } from '@/app/sign-in/actions';
 
 /** "Signed in as …", People for admins, and Sign out (a POST: nothing changes state on GET). */
 export async function AccountBar() {

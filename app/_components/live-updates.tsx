@@ -8,7 +8,7 @@
  */
 import { useRouter } from 'next/navigation';
 import { useCallback, useEffect, useRef, useState } from 'react';
-import { verdictLabel } from '../../lib/diagnosis/vocabulary';
+import { verdictLabel } from '@/lib/diagnosis/vocabulary';
 import styles from './live-updates.module.css';
 
 /** Least time between two refreshes of the page, ms. */

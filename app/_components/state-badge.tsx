@@ -1,4 +1,4 @@
-import { UNIT_STATES, UNIT_STATE_NAME, type UnitState } from '../../lib/fleet/unit-state';
+import { UNIT_STATES, UNIT_STATE_NAME, type UnitState } from '@/lib/fleet/unit-state';
 
 /**
  * One shape per state, so a state reads without colour: an octagon for a

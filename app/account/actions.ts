@@ -2,15 +2,15 @@
 /** A signed-in person changes their own password; other sessions of theirs end. */
 import { cookies, headers } from 'next/headers';
 import { redirect } from 'next/navigation';
-import { getDatabase } from '../../db/client';
-import { safeNextPath } from '../../lib/auth/access';
-import { actorOfViewer } from '../../lib/auth/audit';
-import { verifyPassword } from '../../lib/auth/passwords';
-import { getPersonByEmail, setPassword } from '../../lib/auth/people';
-import { secureCookies, sessionTimes } from '../../lib/auth/request';
-import { endSessionsOfPerson, resolveSession, sessionCookieName } from '../../lib/auth/sessions';
-import { currentViewer } from '../../lib/auth/viewer';
-import type { FormResult } from '../admin/form-result';
+import { getDatabase } from '@/db/client';
+import { safeNextPath } from '@/lib/auth/access';
+import { actorOfViewer } from '@/lib/auth/audit';
+import { verifyPassword } from '@/lib/auth/passwords';
+import { getPersonByEmail, setPassword } from '@/lib/auth/people';
+import { secureCookies, sessionTimes } from '@/lib/auth/request';
+import { endSessionsOfPerson, resolveSession, sessionCookieName } from '@/lib/auth/sessions';
+import { currentViewer } from '@/lib/auth/viewer';
+import type { FormResult } from '@/app/admin/form-result';
 
 export async function changePasswordAction(previous: FormResult, data: FormData): Promise<FormResult> {
   const submitted = previous.submitted + 1;

@@ -1,9 +1,9 @@
 import type { Metadata } from 'next';
-import { getDatabase } from '../../db/client';
-import { currentViewer } from '../../lib/auth/viewer';
-import { formatCursor, getQuarantineCountsByUnit, getQuarantinePage, parseCursor, QUARANTINE_PAGE_SIZE } from '../../lib/quality/queries';
-import { getSetupSites } from '../../lib/setup/queries';
-import { LocalTime } from '../_components/local-time';
+import { getDatabase } from '@/db/client';
+import { currentViewer } from '@/lib/auth/viewer';
+import { formatCursor, getQuarantineCountsByUnit, getQuarantinePage, parseCursor, QUARANTINE_PAGE_SIZE } from '@/lib/quality/queries';
+import { getSetupSites } from '@/lib/setup/queries';
+import { LocalTime } from '@/app/_components/local-time';
 import { PayloadBlock } from './_components/payload-block';
 import styles from './quality.module.css';
 import { dataQualityQuerySchema } from './schema';

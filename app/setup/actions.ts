@@ -5,12 +5,12 @@
  * and on success goes to the saved record's page.
  */
 import { redirect } from 'next/navigation';
-import { getDatabase } from '../../db/client';
-import { currentViewer } from '../../lib/auth/viewer';
-import { SLUG } from '../../lib/contract/nameplate';
-import { importFleetFile, MAX_FLEET_FILE_BYTES, parseFleetText } from '../../lib/setup/fleet-import';
-import { formValues, nameplateFromForm, siteFromForm } from '../../lib/setup/forms';
-import { insertSite, insertUnit, updateSite, updateUnit } from '../../lib/setup/queries';
+import { getDatabase } from '@/db/client';
+import { currentViewer } from '@/lib/auth/viewer';
+import { SLUG } from '@/lib/contract/nameplate';
+import { importFleetFile, MAX_FLEET_FILE_BYTES, parseFleetText } from '@/lib/setup/fleet-import';
+import { formValues, nameplateFromForm, siteFromForm } from '@/lib/setup/forms';
+import { insertSite, insertUnit, updateSite, updateUnit } from '@/lib/setup/queries';
 import type { FormState, ImportState } from './form-state';
 
 function slugOrThrow(value: string): string {

@@ -6,11 +6,11 @@
  * announced on the live feed, so the embedded broker cuts the device off.
  */
 import { revalidatePath } from 'next/cache';
-import { getDatabase } from '../../db/client';
-import { currentViewer } from '../../lib/auth/viewer';
-import { SLUG } from '../../lib/contract/nameplate';
-import { issueDeviceCredentials, revokeDeviceCredentials } from '../../lib/devices/queries';
-import { createLivePublisher } from '../../lib/live/publisher';
+import { getDatabase } from '@/db/client';
+import { currentViewer } from '@/lib/auth/viewer';
+import { SLUG } from '@/lib/contract/nameplate';
+import { issueDeviceCredentials, revokeDeviceCredentials } from '@/lib/devices/queries';
+import { createLivePublisher } from '@/lib/live/publisher';
 
 export interface DeviceCredentialsState {
   submitted: number;

@@ -1,5 +1,5 @@
-import type { FieldErrors, FormValues } from '../../lib/setup/forms';
-import type { FleetImportReport } from '../../lib/setup/fleet-import';
+import type { FieldErrors, FormValues } from '@/lib/setup/forms';
+import type { FleetImportReport } from '@/lib/setup/fleet-import';
 
 /** What a setup form shows after a submission: the values as typed and the problems by field. */
 export interface FormState {

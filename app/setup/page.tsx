@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
-import { getDatabase } from '../../db/client';
-import { currentViewer, canEditSetup } from '../../lib/auth/viewer';
-import { getSetupSites } from '../../lib/setup/queries';
+import { getDatabase } from '@/db/client';
+import { currentViewer, canEditSetup } from '@/lib/auth/viewer';
+import { getSetupSites } from '@/lib/setup/queries';
 import styles from './setup.module.css';
 
 export const dynamic = 'force-dynamic';

@@ -6,13 +6,13 @@
  */
 import { cookies, headers } from 'next/headers';
 import { redirect } from 'next/navigation';
-import { getDatabase } from '../../db/client';
-import { safeNextPath } from '../../lib/auth/access';
-import { writeAudit } from '../../lib/auth/audit';
-import { getPersonById } from '../../lib/auth/people';
-import { clientIp, secureCookies, sessionTimes } from '../../lib/auth/request';
-import { endSession, sessionCookieName, sessionCookieOptions } from '../../lib/auth/sessions';
-import { REFUSED_MESSAGE, signIn } from '../../lib/auth/sign-in';
+import { getDatabase } from '@/db/client';
+import { safeNextPath } from '@/lib/auth/access';
+import { writeAudit } from '@/lib/auth/audit';
+import { getPersonById } from '@/lib/auth/people';
+import { clientIp, secureCookies, sessionTimes } from '@/lib/auth/request';
+import { endSession, sessionCookieName, sessionCookieOptions } from '@/lib/auth/sessions';
+import { REFUSED_MESSAGE, signIn } from '@/lib/auth/sign-in';
 import type { SignInState } from './state';
 
 function waitWords(s: number): string {

@@ -1,8 +1,8 @@
 import type { Metadata } from 'next';
-import { safeNextPath } from '../../lib/auth/access';
-import { DEMO_ADMIN_EMAIL } from '../../lib/auth/demo-admin';
-import { getConfig } from '../../lib/config/env';
-import styles from '../account/account.module.css';
+import { safeNextPath } from '@/lib/auth/access';
+import { DEMO_ADMIN_EMAIL } from '@/lib/auth/demo-admin';
+import { getConfig } from '@/lib/config/env';
+import styles from '@/app/account/account.module.css';
 import { SignInForm } from './sign-in-form';
 
 export const dynamic = 'force-dynamic';

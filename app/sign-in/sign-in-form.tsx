@@ -1,6 +1,6 @@
 'use client';
 import { useActionState, useEffect, useRef } from 'react';
-import styles from '../account/account.module.css';
+import styles from '@/app/account/account.module.css';
 import { signInAction } from './actions';
 import { initialSignInState } from './state';
 

@@ -13,7 +13,7 @@ import {
   text,
   timestamp,
 } from 'drizzle-orm/pg-core';
-import { MAGNET_MATERIALS, UNIT_KINDS, type DiagnosisLimits } from '../../lib/contract/nameplate';
+import { MAGNET_MATERIALS, UNIT_KINDS, type DiagnosisLimits } from '@/lib/contract/nameplate';
 
 export const unitKindEnum = pgEnum('unit_kind', UNIT_KINDS);
 export const magnetMaterialEnum = pgEnum('magnet_material', MAGNET_MATERIALS);

@@ -4,8 +4,8 @@
  * 404 for a site or unit that does not exist or that the caller may not see.
  */
 import { z } from 'zod';
-import { SLUG } from '../contract/nameplate';
-import { AppError, isAppError } from '../errors/app-error';
+import { SLUG } from '@/lib/contract/nameplate';
+import { AppError, isAppError } from '@/lib/errors/app-error';
 
 /** A JSON answer that no cache keeps (the figures change with every sample). */
 export function jsonResponse(body: unknown, status = 200): Response {

@@ -4,10 +4,10 @@
  * as the screens. The `*Answer` functions take the database and viewer
  * explicitly (tests call them); the `answer*` ones find both for a request.
  */
-import { getDatabase, type Db } from '../../db/client';
-import { currentViewer, type Viewer } from '../auth/viewer';
-import { getSitesWithUnitIds } from '../fleet/queries';
-import { getUnitHealthReport } from '../units/queries';
+import { getDatabase, type Db } from '@/db/client';
+import { currentViewer, type Viewer } from '@/lib/auth/viewer';
+import { getSitesWithUnitIds } from '@/lib/fleet/queries';
+import { getUnitHealthReport } from '@/lib/units/queries';
 import { answer, jsonResponse, notFound, parseParams, unitParamsSchema } from './http';
 
 /** `GET /api/v1/sites` for a viewer. */

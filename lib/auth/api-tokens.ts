@@ -4,8 +4,8 @@
  * listed by name and revocable; a disabled person's tokens stop working.
  */
 import { and, desc, eq, isNull } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { apiTokens, people, type ApiTokenRow, type PersonRow } from '../../db/schema';
+import type { Db } from '@/db/client';
+import { apiTokens, people, type ApiTokenRow, type PersonRow } from '@/db/schema';
 import { writeAudit, type Actor } from './audit';
 import { hashSecret, looksLikeSecret, newSecret } from './secrets';
 

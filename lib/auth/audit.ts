@@ -5,8 +5,8 @@
  * admin screen /admin/audit, newest first.
  */
 import { and, desc, eq, lt, or, type SQL } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { auditLog, type AuditRow } from '../../db/schema';
+import type { Db } from '@/db/client';
+import { auditLog, type AuditRow } from '@/db/schema';
 import type { Viewer } from './viewer';
 
 /** Who did it, as the log records it. */

@@ -6,7 +6,7 @@
  * first sign-in: until then every page leads to the password form.
  */
 import { randomBytes } from 'node:crypto';
-import type { Db } from '../../db/client';
+import type { Db } from '@/db/client';
 import { addPerson, hasPeople } from './people';
 
 export const DEMO_ADMIN_EMAIL = 'admin@demo.invalid';

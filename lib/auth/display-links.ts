@@ -5,8 +5,8 @@
  * revoked. The page sends no referrer, so the token does not leak in links.
  */
 import { and, desc, eq, isNull } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { displayLinks, sites, type DisplayLinkRow } from '../../db/schema';
+import type { Db } from '@/db/client';
+import { displayLinks, sites, type DisplayLinkRow } from '@/db/schema';
 import { writeAudit, type Actor } from './audit';
 import { hashSecret, looksLikeSecret, newSecret } from './secrets';
 import type { Viewer } from './viewer';

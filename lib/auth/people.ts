@@ -5,9 +5,9 @@
  */
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Db } from '../../db/client';
-import { people, personSites, sessions, sites, type PersonRow } from '../../db/schema';
-import { AppError } from '../errors/app-error';
+import type { Db } from '@/db/client';
+import { people, personSites, sessions, sites, type PersonRow } from '@/db/schema';
+import { AppError } from '@/lib/errors/app-error';
 import { writeAudit, type Actor } from './audit';
 import { hashPassword, passwordProblem } from './passwords';
 import { SITE_BOUND_ROLES, roleSchema, type Role } from './roles';

@@ -5,9 +5,9 @@
  * `x-millrace-path`, both overwriting whatever a client sent.
  */
 import { cache } from 'react';
-import { getDatabase, type Db } from '../../db/client';
-import { getConfig } from '../config/env';
-import { AppError } from '../errors/app-error';
+import { getDatabase, type Db } from '@/db/client';
+import { getConfig } from '@/lib/config/env';
+import { AppError } from '@/lib/errors/app-error';
 import { isApiPath, safeNextPath } from './access';
 import { resolveApiToken } from './api-tokens';
 import { viewerOfPerson } from './people';

@@ -12,8 +12,8 @@
  * screens use display links instead (lib/auth/display-links.ts).
  */
 import { and, eq, gt, lt, ne, or } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { people, sessions, type PersonRow, type SessionRow } from '../../db/schema';
+import type { Db } from '@/db/client';
+import { people, sessions, type PersonRow, type SessionRow } from '@/db/schema';
 import { hashSecret, looksLikeSecret, newSecret } from './secrets';
 
 export interface SessionTimes {

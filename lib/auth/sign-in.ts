@@ -4,8 +4,8 @@
  * account, every outcome in the audit log, a new session on success.
  */
 import { eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { people, type PersonRow } from '../../db/schema';
+import type { Db } from '@/db/client';
+import { people, type PersonRow } from '@/db/schema';
 import { writeAudit } from './audit';
 import { dummyPasswordHash, hashPassword, needsRehash, verifyPassword } from './passwords';
 import { getPersonByEmail } from './people';

@@ -31,8 +31,8 @@
  * that rewrites it would make every address the proxy's: see DEVELOPERS.md).
  */
 import { inArray, sql } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { signInThrottle, type SignInThrottleRow } from '../../db/schema';
+import type { Db } from '@/db/client';
+import { signInThrottle, type SignInThrottleRow } from '@/db/schema';
 
 export const FREE_FAILURES = { address: 20, account: 5, pair: 5 } as const;
 export const MAX_WAIT_S = 15 * 60;

@@ -13,10 +13,10 @@
 import { createServer, type Server } from 'node:net';
 import { Aedes, type Client, type Subscription } from 'aedes';
 import { createCredentialCache, mayPublish, maySubscribe, type BrokerAuthoriser, type BrokerIdentity } from './access';
-import { AppError } from '../errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 import { createEmbeddedPersistence } from './embedded-persistence';
-import type { Logger } from '../log/logger';
-import { isPortFree } from '../server/ports';
+import type { Logger } from '@/lib/log/logger';
+import { isPortFree } from '@/lib/server/ports';
 
 export interface EmbeddedBroker {
   url: string;

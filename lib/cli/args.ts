@@ -6,7 +6,7 @@
  * (lib/cli/help.ts; lib/cli/help.test.ts checks).
  */
 import { parseArgs } from 'node:util';
-import { AppError } from '../errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 
 /** util.parseArgs's refusal in our words, naming the option. */
 function optionErrorWords(error: Error & { code?: string }): string {

@@ -7,11 +7,11 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
-import { TELEMETRY_FIELDS, type TelemetrySample } from '../contract/telemetry';
+import { TELEMETRY_FIELDS, type TelemetrySample } from '@/lib/contract/telemetry';
 import { main, type CliIo } from './main';
 import { lineOfJsonPath } from './check';
-import { SAFETY_CAUTION } from '../diagnosis/findings';
-import { TEST_NAMEPLATE, syntheticSamples } from '../../test/support/synthetic-unit';
+import { SAFETY_CAUTION } from '@/lib/diagnosis/findings';
+import { TEST_NAMEPLATE, syntheticSamples } from '@/test/support/synthetic-unit';
 
 let dir: string;
 

@@ -6,14 +6,14 @@
  * memory as text.
  */
 import { createReadStream, statSync } from 'node:fs';
-import { AppError } from '../errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 import { describeFileError } from './file-errors';
 import {
   REQUIRED_TELEMETRY_FIELDS,
   TELEMETRY_FIELDS,
   parseTelemetrySample,
   type TelemetrySample,
-} from '../contract/telemetry';
+} from '@/lib/contract/telemetry';
 
 export interface CsvLogHandlers {
   /** A valid sample and its 1-based line number. */

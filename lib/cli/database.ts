@@ -3,8 +3,8 @@
  * the embedded folder, which a running embedded server holds (then the lock
  * refuses with a message saying so).
  */
-import { getConfig } from '../config/env';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
+import { getConfig } from '@/lib/config/env';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
 
 /** Opens and migrates the configured database; the caller closes it. */
 export async function openCliDatabase(): Promise<DatabaseHandle> {

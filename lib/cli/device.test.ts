@@ -10,8 +10,8 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { testFleet, testTag } from '../../test/support/ingest';
-import { verifyPassword } from '../devices/credentials';
+import { testFleet, testTag } from '@/test/support/ingest';
+import { verifyPassword } from '@/lib/devices/credentials';
 
 const run = promisify(execFile);
 const bin = fileURLToPath(new URL('../../bin/millrace.mjs', import.meta.url));

@@ -16,14 +16,14 @@
  * `units import`. A rotation is announced on the live feed (NOTIFY on
  * PostgreSQL), so a running product's embedded broker cuts the device off.
  */
-import { LOCAL_VIEWER } from '../auth/viewer';
-import { SLUG } from '../contract/nameplate';
-import { getConfig } from '../config/env';
-import { listBrokerAccounts, issueDeviceCredentials, revokeDeviceCredentials } from '../devices/queries';
-import { ingesterAccount } from '../devices/broker-files';
-import { writeBrokerAuthFiles } from '../devices/broker-files';
-import { AppError } from '../errors/app-error';
-import { createLivePublisher } from '../live/publisher';
+import { LOCAL_VIEWER } from '@/lib/auth/viewer';
+import { SLUG } from '@/lib/contract/nameplate';
+import { getConfig } from '@/lib/config/env';
+import { listBrokerAccounts, issueDeviceCredentials, revokeDeviceCredentials } from '@/lib/devices/queries';
+import { ingesterAccount } from '@/lib/devices/broker-files';
+import { writeBrokerAuthFiles } from '@/lib/devices/broker-files';
+import { AppError } from '@/lib/errors/app-error';
+import { createLivePublisher } from '@/lib/live/publisher';
 import { parseOptions } from './args';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';

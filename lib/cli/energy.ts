@@ -11,15 +11,15 @@ import type { CliIo } from './main';
 import { parseOptions } from './args';
 import { readCsvLog } from './csv-log';
 import { readNameplateFile } from './json-file';
-import { AppError } from '../errors/app-error';
-import { isIanaTimeZone, type Nameplate } from '../contract/nameplate';
-import { describeValue } from '../contract/telemetry';
-import { collectEnergySamples, type EnergySampleCounts } from '../energy/energy-samples';
-import { monthlyEnergy, type MonthEnergy } from '../energy/monthly-energy';
-import { energyFigures, type EnergyFigures } from '../energy/energy-figures';
-import { sumEnergyTotals } from '../energy/energy-totals';
-import { MAX_COVERED_INTERVAL_MS } from '../energy/integrate';
-import { UTC_ZONE } from '../energy/zoned-time';
+import { AppError } from '@/lib/errors/app-error';
+import { isIanaTimeZone, type Nameplate } from '@/lib/contract/nameplate';
+import { describeValue } from '@/lib/contract/telemetry';
+import { collectEnergySamples, type EnergySampleCounts } from '@/lib/energy/energy-samples';
+import { monthlyEnergy, type MonthEnergy } from '@/lib/energy/monthly-energy';
+import { energyFigures, type EnergyFigures } from '@/lib/energy/energy-figures';
+import { sumEnergyTotals } from '@/lib/energy/energy-totals';
+import { MAX_COVERED_INTERVAL_MS } from '@/lib/energy/integrate';
+import { UTC_ZONE } from '@/lib/energy/zoned-time';
 
 /** How many bad rows a note lists by line. */
 const LISTED_BAD_ROWS = 5;

@@ -10,10 +10,10 @@
  * so a year of one unit never sits in memory.
  */
 import { once } from 'node:events';
-import type { DatabaseHandle } from '../../db/client';
-import { SLUG } from '../contract/nameplate';
-import { TELEMETRY_FIELDS, VALUE_FIELDS, columnOfField, describeValue, parseTimestampMs } from '../contract/telemetry';
-import { AppError } from '../errors/app-error';
+import type { DatabaseHandle } from '@/db/client';
+import { SLUG } from '@/lib/contract/nameplate';
+import { TELEMETRY_FIELDS, VALUE_FIELDS, columnOfField, describeValue, parseTimestampMs } from '@/lib/contract/telemetry';
+import { AppError } from '@/lib/errors/app-error';
 import { parseOptions } from './args';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';

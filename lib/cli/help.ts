@@ -4,7 +4,7 @@
  * its values take. Everything is wrapped to 80 columns (lib/cli/help.test.ts
  * checks the width, and that each option a command parses is listed here).
  */
-import { REQUIRED_TELEMETRY_FIELDS } from '../contract/telemetry';
+import { REQUIRED_TELEMETRY_FIELDS } from '@/lib/contract/telemetry';
 
 /** Width the help wraps to. */
 export const HELP_WIDTH = 80;

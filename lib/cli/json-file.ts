@@ -5,9 +5,9 @@
  */
 import { readFile } from 'node:fs/promises';
 import type { z } from 'zod';
-import { AppError } from '../errors/app-error';
-import { formatIssues } from '../contract/telemetry';
-import { fleetSchema, nameplateSchema, type Nameplate } from '../contract/nameplate';
+import { AppError } from '@/lib/errors/app-error';
+import { formatIssues } from '@/lib/contract/telemetry';
+import { fleetSchema, nameplateSchema, type Nameplate } from '@/lib/contract/nameplate';
 import { describeFileError } from './file-errors';
 
 /** Result of reading a file: the value, or every problem as "path: reason". */

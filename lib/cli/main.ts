@@ -2,7 +2,7 @@
  * Entry of `npx millrace` (contract, section 4). Each command lives in its own
  * module and exports `run(args, io): Promise<number>` returning the exit status.
  */
-import { AppError } from '../errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 import { describeFileError, isFileError, withNetworkWords } from './file-errors';
 import { COMMAND_HELP, commandHelpText, helpText } from './help';
 

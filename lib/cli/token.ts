@@ -3,9 +3,9 @@
  * section 4): prints a new API token of that person once; only its hash is
  * kept. It carries the person's role and sites (`Authorization: Bearer`).
  */
-import { createApiToken } from '../auth/api-tokens';
-import { getPersonByEmail } from '../auth/people';
-import { AppError } from '../errors/app-error';
+import { createApiToken } from '@/lib/auth/api-tokens';
+import { getPersonByEmail } from '@/lib/auth/people';
+import { AppError } from '@/lib/errors/app-error';
 import { parseOptions } from './args';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';

@@ -3,10 +3,10 @@
  * updates sites and units, all or nothing. Every problem is printed with its
  * path and the exit status is 2 when anything is invalid.
  */
-import { LOCAL_VIEWER } from '../auth/viewer';
-import { fleetSchema } from '../contract/nameplate';
-import { AppError } from '../errors/app-error';
-import { importFleetFile } from '../setup/fleet-import';
+import { LOCAL_VIEWER } from '@/lib/auth/viewer';
+import { fleetSchema } from '@/lib/contract/nameplate';
+import { AppError } from '@/lib/errors/app-error';
+import { importFleetFile } from '@/lib/setup/fleet-import';
 import { readJsonFile } from './json-file';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';

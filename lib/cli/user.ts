@@ -7,8 +7,8 @@
  */
 import { createInterface } from 'node:readline';
 import { Writable } from 'node:stream';
-import { addPerson } from '../auth/people';
-import { AppError } from '../errors/app-error';
+import { addPerson } from '@/lib/auth/people';
+import { AppError } from '@/lib/errors/app-error';
 import { parseOptions } from './args';
 import { openCliDatabase } from './database';
 import type { CliIo } from './main';

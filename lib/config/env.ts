@@ -4,7 +4,7 @@
  * variable and what it expects. README.md lists the same table for users.
  */
 import { z } from 'zod';
-import { AppError } from '../errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 
 const onOff = z
   .enum(['on', 'off', 'true', 'false', '1', '0'], { error: 'expected on or off' })

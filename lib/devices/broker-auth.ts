@@ -5,8 +5,8 @@
  * life of the process (a new random password at each start).
  */
 import { timingSafeEqual, createHash } from 'node:crypto';
-import type { Db } from '../../db/client';
-import type { BrokerAuthoriser } from '../broker/access';
+import type { Db } from '@/db/client';
+import type { BrokerAuthoriser } from '@/lib/broker/access';
 import { newPassword } from './credentials';
 import { verifyBrokerCredentials } from './queries';
 

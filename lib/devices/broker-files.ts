@@ -14,8 +14,8 @@
  */
 import { chmodSync, mkdirSync, renameSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { deviceTopics } from '../broker/access';
-import { AppError } from '../errors/app-error';
+import { deviceTopics } from '@/lib/broker/access';
+import { AppError } from '@/lib/errors/app-error';
 import { hashPassword } from './credentials';
 import type { BrokerAccount } from './queries';
 

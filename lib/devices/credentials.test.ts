@@ -3,7 +3,7 @@ import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { mosquitto, skipUnless, type ServiceProbe } from '../../test/support/services';
+import { mosquitto, skipUnless, type ServiceProbe } from '@/test/support/services';
 import { HASH_ITERATIONS, deviceUsername, hashPassword, newPassword, parseHash, verifyPassword } from './credentials';
 
 // mosquitto_passwd lives beside mosquitto on Debian (/usr/bin vs /usr/sbin), so look in both.

@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { LOCAL_VIEWER, type Viewer } from '../auth/viewer';
-import type { LiveEvent } from '../live/events';
-import { createTestDatabase, type TestDatabase } from '../../test/support/backend';
-import { queryRows, registerFleet, testFleet, testTag } from '../../test/support/ingest';
+import { LOCAL_VIEWER, type Viewer } from '@/lib/auth/viewer';
+import type { LiveEvent } from '@/lib/live/events';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { queryRows, registerFleet, testFleet, testTag } from '@/test/support/ingest';
 import { getDeviceCredentials, issueDeviceCredentials, listBrokerAccounts, listDeviceCredentials, revokeDeviceCredentials, verifyBrokerCredentials } from './queries';
 
 const tag = testTag();

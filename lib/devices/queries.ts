@@ -16,12 +16,12 @@
  * hears it and disconnects that unit's device at once.
  */
 import { and, asc, eq, inArray, isNull, sql } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { mqttAccounts, units } from '../../db/schema';
-import { actorOfViewer, writeAudit } from '../auth/audit';
-import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '../auth/viewer';
-import type { BrokerIdentity } from '../broker/access';
-import type { LivePublisher } from '../live/publisher';
+import type { Db } from '@/db/client';
+import { mqttAccounts, units } from '@/db/schema';
+import { actorOfViewer, writeAudit } from '@/lib/auth/audit';
+import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
+import type { BrokerIdentity } from '@/lib/broker/access';
+import type { LivePublisher } from '@/lib/live/publisher';
 import { deviceUsername, hashPassword, newPassword, verifyPassword } from './credentials';
 
 /** What the setup screen shows of a unit's account: never the password or its hash. */

@@ -6,8 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import type { Nameplate } from '../contract/nameplate';
-import type { TelemetrySample } from '../contract/telemetry';
+import type { Nameplate } from '@/lib/contract/nameplate';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
 import { diagnoseSamples, type DiagnosisResult } from './diagnose';
 import { SAFETY_CAUTION } from './findings';
 import { SampleColumns } from './sample-columns';
@@ -19,7 +19,7 @@ import {
   syntheticSamples,
   testNameplate,
   type SyntheticOptions,
-} from '../../test/support/synthetic-unit';
+} from '@/test/support/synthetic-unit';
 
 const codes = (r: DiagnosisResult) => r.findings.map((f) => f.code);
 const byCode = (r: DiagnosisResult, code: string) => r.findings.find((f) => f.code === code);

@@ -5,16 +5,16 @@
  * findings. The command line runs it over a whole log, the live diagnosis
  * over a window of each unit's recent samples.
  */
-import type { DiagnosisLimits, MagnetMaterial } from '../contract/nameplate';
-import { SQRT3, recoverPhaseEmfFast } from '../physics/emf';
-import { remanenceCoeffPctPerC } from '../physics/magnet-temperature';
-import { median } from '../physics/median';
-import { negativeSequenceUnbalancePct } from '../physics/negative-sequence';
-import { meanOfPhases } from '../physics/phase-mean';
-import { phaseVoltsFromLines } from '../physics/phase-voltages';
-import { rpmFromHz } from '../physics/synchronous-speed';
-import { fitThroughOrigin } from '../physics/through-origin-fit';
-import { lineVoltageUnbalancePct } from '../physics/unbalance';
+import type { DiagnosisLimits, MagnetMaterial } from '@/lib/contract/nameplate';
+import { SQRT3, recoverPhaseEmfFast } from '@/lib/physics/emf';
+import { remanenceCoeffPctPerC } from '@/lib/physics/magnet-temperature';
+import { median } from '@/lib/physics/median';
+import { negativeSequenceUnbalancePct } from '@/lib/physics/negative-sequence';
+import { meanOfPhases } from '@/lib/physics/phase-mean';
+import { phaseVoltsFromLines } from '@/lib/physics/phase-voltages';
+import { rpmFromHz } from '@/lib/physics/synchronous-speed';
+import { fitThroughOrigin } from '@/lib/physics/through-origin-fit';
+import { lineVoltageUnbalancePct } from '@/lib/physics/unbalance';
 import { lineEmfBehindTerminals, loadPowerFactor, magnetTempC, windingOhm, windingTempC } from './sample-emf';
 import { SampleColumns, type DiagnosisSample } from './sample-columns';
 import { OVERSPEED_GAP_S, resolveLimits, TRANSIENT_NEIGHBOUR_MAX_S, type ResolvedLimits } from './limits';

@@ -4,7 +4,7 @@
  * standard (contract, section 5); a unit may set its own in
  * `nameplate.diagnosis`.
  */
-import type { DiagnosisLimits } from '../contract/nameplate';
+import type { DiagnosisLimits } from '@/lib/contract/nameplate';
 
 /** All diagnosis thresholds, resolved. */
 export interface ResolvedLimits {

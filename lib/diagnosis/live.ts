@@ -8,9 +8,9 @@
  * when the verdict changes): successive windows overlap by all but a minute,
  * so more rows would add volume and no information to the trend.
  */
-import type { Db } from '../../db/client';
-import type { Logger } from '../log/logger';
-import type { LivePublisher } from '../live/publisher';
+import type { Db } from '@/db/client';
+import type { Logger } from '@/lib/log/logger';
+import type { LivePublisher } from '@/lib/live/publisher';
 import { diagnoseSamples, type DiagnosisResult, type Verdict } from './diagnose';
 import { finding } from './findings';
 import { DEFAULT_LIMITS } from './limits';

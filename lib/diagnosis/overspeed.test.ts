@@ -5,7 +5,7 @@
  * that sends someone to the machine says the safe thing first.
  */
 import { describe, expect, it } from 'vitest';
-import { TEST_NAMEPLATE, syntheticSamples } from '../../test/support/synthetic-unit';
+import { TEST_NAMEPLATE, syntheticSamples } from '@/test/support/synthetic-unit';
 import { diagnoseSamples, type DiagnosisResult } from './diagnose';
 import { SAFETY_CAUTION, splitFindingMessage } from './findings';
 

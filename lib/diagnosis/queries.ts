@@ -4,9 +4,9 @@
  * latest health plus history in one transaction.
  */
 import { sql } from 'drizzle-orm';
-import { rowsOf, type Db } from '../../db/client';
-import { unitHealth, unitHealthHistory, type NewUnitHealthHistoryRow, type NewUnitHealthRow } from '../../db/schema';
-import { diagnosisLimitsSchema, MAGNET_MATERIALS, type DiagnosisLimits, type MagnetMaterial } from '../contract/nameplate';
+import { rowsOf, type Db } from '@/db/client';
+import { unitHealth, unitHealthHistory, type NewUnitHealthHistoryRow, type NewUnitHealthRow } from '@/db/schema';
+import { diagnosisLimitsSchema, MAGNET_MATERIALS, type DiagnosisLimits, type MagnetMaterial } from '@/lib/contract/nameplate';
 import { VERDICTS, type DiagnosisNameplate, type DiagnosisResult, type Verdict } from './diagnose';
 import { SampleColumns } from './sample-columns';
 import type { KeHistoryPoint, KeTrend } from './trend';

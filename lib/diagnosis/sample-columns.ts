@@ -5,7 +5,7 @@
  * Measurements are stored as 32-bit floats (7 significant digits, finer than
  * any field meter); the time stays a 64-bit float of epoch milliseconds.
  */
-import type { TelemetrySample } from '../contract/telemetry';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
 
 /** The measurement fields the diagnosis reads. */
 export const DIAGNOSIS_FIELDS = ['rpm', 'hz', 'vab', 'vbc', 'vca', 'ia', 'ib', 'ic', 'kw', 'statorC', 'ambientC'] as const;

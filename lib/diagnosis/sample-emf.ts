@@ -4,8 +4,8 @@
  * so that the chart shows exactly the EMF the verdict rests on. Readings are
  * plain numbers with NaN for an absent value, as the column store keeps them.
  */
-import { SQRT3, recoverPhaseEmfFast } from '../physics/emf';
-import { COPPER_REF_C, COPPER_TEMP_COEFF_PER_C } from '../physics/winding-resistance';
+import { SQRT3, recoverPhaseEmfFast } from '@/lib/physics/emf';
+import { COPPER_REF_C, COPPER_TEMP_COEFF_PER_C } from '@/lib/physics/winding-resistance';
 
 /**
  * Winding temperature of a sample, °C: stator, else ambient, else 20 °C.

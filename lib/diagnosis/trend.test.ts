@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { keTrend, type KeHistoryPoint } from './trend';
-import { seededNormal, seededRandom } from '../../test/support/synthetic-unit';
+import { seededNormal, seededRandom } from '@/test/support/synthetic-unit';
 
 const DAY = 86_400_000;
 const T0 = Date.UTC(2026, 0, 1);

@@ -15,8 +15,8 @@
  * - an EWMA (λ = 0.2, same source) as the smoothed current level.
  * The crossing date extrapolates the robust line to the threshold.
  */
-import { median } from '../physics/median';
-import { theilSen } from '../physics/robust-slope';
+import { median } from '@/lib/physics/median';
+import { theilSen } from '@/lib/physics/robust-slope';
 
 /** One diagnosis of the history. */
 export interface KeHistoryPoint {

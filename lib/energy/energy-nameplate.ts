@@ -2,8 +2,8 @@
  * The part of a nameplate (contract, section 2) the energy figures read, and
  * the check that a unit of its kind carries the fields they need.
  */
-import type { Nameplate } from '../contract/nameplate';
-import type { TelemetrySample } from '../contract/telemetry';
+import type { Nameplate } from '@/lib/contract/nameplate';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
 
 /** Nameplate fields the energy figures use. */
 export type EnergyNameplate = Pick<

@@ -5,7 +5,7 @@
  * time, its kW, its expected kW and whether the resource was there; what a
  * sample lacks is marked in its flags, never stood in for by a number.
  */
-import type { TelemetrySample } from '../contract/telemetry';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
 import type { EnergyNameplate } from './energy-nameplate';
 import { expectedPowerModel } from './expected-power';
 import { resourcePresence } from './resource';

@@ -2,8 +2,8 @@
  * What a wall screen's display link shows: one site's table or the fleet,
  * read as the link's read-only viewer (lib/auth/display-links.ts).
  */
-import { getDatabase } from '../../db/client';
-import { resolveDisplayLink } from '../auth/display-links';
+import { getDatabase } from '@/db/client';
+import { resolveDisplayLink } from '@/lib/auth/display-links';
 import { readFleetScreen, readSiteScreen, type FleetScreen, type SiteScreen } from './overview';
 
 export type DisplayScreen = { name: string; nowMs: number } & ({ kind: 'site'; site: SiteScreen } | { kind: 'fleet'; fleet: FleetScreen });

@@ -2,10 +2,10 @@
  * What the fleet and site screens read, one function a screen: this process's
  * database, the viewer of the request, and the queries of lib/fleet/queries.ts.
  */
-import { getDatabase, type Db } from '../../db/client';
-import { canEditSetup, currentViewer, siteFilter, type Viewer } from '../auth/viewer';
-import { getConfig } from '../config/env';
-import { getComponentState } from '../server/registry';
+import { getDatabase, type Db } from '@/db/client';
+import { canEditSetup, currentViewer, siteFilter, type Viewer } from '@/lib/auth/viewer';
+import { getConfig } from '@/lib/config/env';
+import { getComponentState } from '@/lib/server/registry';
 import { getFleetSites, getQuarantineSummary, getSiteView, type FleetSite, type QuarantineSummary, type SiteView } from './queries';
 import { parseSiteTableParams, sortSiteUnits, type SiteTableParams } from './site-table';
 import type { UnitLatest } from './queries';

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createTestDatabase, type TestDatabase } from '../../test/support/backend';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { QUARANTINE_COUNT_CAP, getQuarantineSummary } from './queries';
 
 let testDb: TestDatabase;

@@ -3,8 +3,8 @@
  * its latest diagnosis and how long ago its last sample arrived. Pure: the
  * queries feed it, the screens and the read API show it.
  */
-import { splitFindingMessage } from '../diagnosis/findings';
-import { findingTitle, NOT_JUDGED_LABEL, noDataLabel, VERDICT_BASIS, verdictLabel } from '../diagnosis/vocabulary';
+import { splitFindingMessage } from '@/lib/diagnosis/findings';
+import { findingTitle, NOT_JUDGED_LABEL, noDataLabel, VERDICT_BASIS, verdictLabel } from '@/lib/diagnosis/vocabulary';
 
 /** Unit states, worst first: the order of the fleet's counts and of every sort by state. */
 export const UNIT_STATES = ['fault', 'warning', 'no-data', 'not-judged', 'healthy'] as const;

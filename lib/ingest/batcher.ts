@@ -9,7 +9,7 @@
  * the batch is retried with backoff, nothing is acknowledged, the outage is
  * logged once and its end once.
  */
-import type { Logger } from '../log/logger';
+import type { Logger } from '@/lib/log/logger';
 import type { Receipt } from './connections';
 import { CommitTimeoutError, isTransientDbError, type IngestDatabase } from './sql';
 import { EMPTY_BLOCK } from './sample-block';

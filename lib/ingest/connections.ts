@@ -22,7 +22,7 @@
  * turn once (setImmediate) before it takes the next message.
  */
 import mqtt, { type IClientOptions, type IPublishPacket, type MqttClient } from 'mqtt';
-import type { Logger } from '../log/logger';
+import type { Logger } from '@/lib/log/logger';
 import { PRESENCE_FILTER, TELEMETRY_FILTER, sharedTelemetryFilter } from './topics';
 
 /** How a delivery is acknowledged: on the network connection it came on, by its packet id. */

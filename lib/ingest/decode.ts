@@ -4,7 +4,7 @@
  * quarantine entry whose reason says what to fix. One bad sample in an array
  * does not reject its good neighbours.
  */
-import { NO_FIELDS, describeValue, parseTelemetrySample, telemetrySampleSchema } from '../contract/telemetry';
+import { NO_FIELDS, describeValue, parseTelemetrySample, telemetrySampleSchema } from '@/lib/contract/telemetry';
 import { EMPTY_BLOCK, appendSample, createSampleBlock, type SampleBlock } from './sample-block';
 
 export { NO_FIELDS };

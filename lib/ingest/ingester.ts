@@ -5,9 +5,9 @@
  * acknowledgements of that batch's messages. See lib/ingest/DESIGN.md.
  */
 import { hostname } from 'node:os';
-import type { DatabaseHandle } from '../../db/client';
-import type { Logger } from '../log/logger';
-import type { LivePublisher } from '../live/publisher';
+import type { DatabaseHandle } from '@/db/client';
+import type { Logger } from '@/lib/log/logger';
+import type { LivePublisher } from '@/lib/live/publisher';
 import { createBatcher, type BatcherCounters, type PendingMessage } from './batcher';
 import { openConnectionPool, type ConnectionState, type Delivery } from './connections';
 import { NO_ENTRIES, NO_FIELDS, QUARANTINE_PAYLOAD_CHARS, boundText, createTelemetryDecoder, decodePresencePayload } from './decode';

@@ -5,13 +5,13 @@
  * drains: commits what it holds, acknowledges it, disconnects, exits. The
  * live diagnosis runs in this process too.
  */
-import { openDatabase } from '../../db/client';
-import { getConfig } from '../config/env';
-import { createLogger } from '../log/logger';
+import { openDatabase } from '@/db/client';
+import { getConfig } from '@/lib/config/env';
+import { createLogger } from '@/lib/log/logger';
 import { heapProblem } from './heap';
 import { startIngester } from './ingester';
-import { startLiveDiagnosis } from '../diagnosis/live';
-import { createLivePublisher } from '../live/publisher';
+import { startLiveDiagnosis } from '@/lib/diagnosis/live';
+import { createLivePublisher } from '@/lib/live/publisher';
 
 async function main(): Promise<number> {
   let config;

@@ -5,8 +5,8 @@
  * arrived; rollups are kept for ever.
  */
 import { sql } from 'drizzle-orm';
-import { PARTITION_MONTHS_AHEAD, rowsOf, type Db } from '../../db/client';
-import { dropPartitionsBefore, ensureMonthlyPartitions, monthStartMs, nextMonthStartMs } from '../../db/partitions';
+import { PARTITION_MONTHS_AHEAD, rowsOf, type Db } from '@/db/client';
+import { dropPartitionsBefore, ensureMonthlyPartitions, monthStartMs, nextMonthStartMs } from '@/db/partitions';
 
 const MS_PER_DAY = 86_400_000;
 

@@ -5,8 +5,8 @@
  * statement, on postgres-js and PGlite alike. Times travel as epoch
  * milliseconds (float8) and come back the same way.
  */
-import type { TelemetrySample } from '../contract/telemetry';
-import { VALUE_FIELDS, columnOfField, type ValueField } from '../contract/telemetry';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
+import { VALUE_FIELDS, columnOfField, type ValueField } from '@/lib/contract/telemetry';
 import type { EnergyPoint, RollupDelta, Stat } from './rollups';
 import { BLOCK_WIDTH, sampleBlockOf, type SampleBlock } from './sample-block';
 import type { SqlRunner } from './sql';

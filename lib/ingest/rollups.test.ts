@@ -1,7 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { integrateIntoBuckets } from '../energy/integrate';
-import type { TelemetrySample } from '../contract/telemetry';
+import { integrateIntoBuckets } from '@/lib/energy/integrate';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
 import { computeRollupDeltas, rollupRowsOf, TEN_MINUTES_MS, DAY_MS, type EnergyPoint, type RollupDelta } from './rollups';
 
 /** What the neighbour query of the ingest transaction returns, done in memory. */

@@ -13,9 +13,9 @@
  * series before and after the insertion are compared, and only the intervals
  * that appear or disappear count.
  */
-import type { TelemetrySample } from '../contract/telemetry';
-import type { UnitKind } from '../contract/nameplate';
-import { meanOfPhases } from '../physics/phase-mean';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
+import type { UnitKind } from '@/lib/contract/nameplate';
+import { meanOfPhases } from '@/lib/physics/phase-mean';
 import { FIELD_INDEX, BLOCK_WIDTH, sampleBlockOf, type SampleBlock } from './sample-block';
 
 /** Length of the short rollup bucket, ms (10 minutes). */

@@ -5,7 +5,7 @@
  * the device's double (its shortest decimal is what COPY sends); the `real`
  * columns round them to float4, and the rollups do the same.
  */
-import { VALUE_FIELDS, type TelemetrySample, type ValueField } from '../contract/telemetry';
+import { VALUE_FIELDS, type TelemetrySample, type ValueField } from '@/lib/contract/telemetry';
 
 export { VALUE_FIELDS, type ValueField };
 

@@ -13,7 +13,7 @@
  * failure the whole client is replaced by a fresh one.
  */
 import type postgres from 'postgres';
-import type { DatabaseHandle, Db } from '../../db/client';
+import type { DatabaseHandle, Db } from '@/db/client';
 
 /** Runs one statement and returns its rows. */
 export interface SqlRunner {

@@ -2,8 +2,8 @@
  * MQTT topics of the data contract (section 3) as the ingester sees them:
  * `millrace/<siteId>/<unitId>/telemetry` and `.../presence`.
  */
-import { SLUG } from '../contract/nameplate';
-import { describeValue } from '../contract/telemetry';
+import { SLUG } from '@/lib/contract/nameplate';
+import { describeValue } from '@/lib/contract/telemetry';
 
 /** Root of every millrace topic. */
 export const TOPIC_ROOT = 'millrace';

@@ -2,7 +2,7 @@
  * Commits one batch of decoded messages: samples, both rollups, quarantine
  * and unit status in one transaction.
  */
-import { ensureMonthlyPartitions } from '../../db/partitions';
+import { ensureMonthlyPartitions } from '@/db/partitions';
 import type { QuarantineEntry } from './decode';
 import {
   getStoredAround,

@@ -5,7 +5,7 @@
  * page that hears of a change reads the new state through its own queries.
  */
 import { z } from 'zod';
-import { SLUG } from '../contract/nameplate';
+import { SLUG } from '@/lib/contract/nameplate';
 
 const slug = z.string().regex(SLUG);
 

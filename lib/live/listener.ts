@@ -7,8 +7,8 @@
  *
  * On PGlite nothing is needed: the workers publish to the hub directly.
  */
-import type { DatabaseHandle } from '../../db/client';
-import type { Logger } from '../log/logger';
+import type { DatabaseHandle } from '@/db/client';
+import type { Logger } from '@/lib/log/logger';
 import { LIVE_CHANNEL, unpackPayload } from './events';
 import { getLiveHub, type LiveHub } from './hub';
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { DatabaseHandle } from '../../db/client';
+import type { DatabaseHandle } from '@/db/client';
 import type { LiveEvent } from './events';
 import { createLiveHub, type StampedEvent } from './hub';
 import { createLivePublisher } from './publisher';

@@ -11,8 +11,8 @@
  * events arriving meanwhile are coalesced per unit (the newest kept) and sent
  * together after it, so a slow database never piles statements up.
  */
-import type { DatabaseHandle } from '../../db/client';
-import type { Logger } from '../log/logger';
+import type { DatabaseHandle } from '@/db/client';
+import type { Logger } from '@/lib/log/logger';
 import { LIVE_CHANNEL, packPayloads, type LiveEvent } from './events';
 import { getLiveHub, type LiveHub } from './hub';
 

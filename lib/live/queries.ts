@@ -3,9 +3,9 @@
  * a site (and one of its units).
  */
 import { and, eq } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { sites, units } from '../../db/schema';
-import { canSeeSite, type Viewer } from '../auth/viewer';
+import type { Db } from '@/db/client';
+import { sites, units } from '@/db/schema';
+import { canSeeSite, type Viewer } from '@/lib/auth/viewer';
 
 export interface LiveScope {
   siteId: string;

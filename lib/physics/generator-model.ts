@@ -15,7 +15,7 @@ import { keAtMagnetC, remanenceCoeffPctPerC } from './magnet-temperature';
 import { reactanceOhm } from './reactance';
 import { electricalHz } from './synchronous-speed';
 import { COPPER_REF_C, copperOhmAt } from './winding-resistance';
-import type { MagnetMaterial } from '../contract/nameplate';
+import type { MagnetMaterial } from '@/lib/contract/nameplate';
 
 /** The nameplate fields the model needs (a validated Nameplate fits). */
 export interface GeneratorSpec {

@@ -3,7 +3,7 @@
  * EMF constant Ke: Ke(T) = Ke(Tref) · (1 + α/100 · (T − Tref)). The
  * coefficient α is the reversible temperature coefficient of remanence Br.
  */
-import type { MagnetMaterial } from '../contract/nameplate';
+import type { MagnetMaterial } from '@/lib/contract/nameplate';
 
 /**
  * Reversible temperature coefficients of remanence, % per °C. Typical values

@@ -6,8 +6,8 @@
  * from a cursor, and the day's counts read at most {@link DAY_COUNT_CAP} rows.
  */
 import { sql, type SQL } from 'drizzle-orm';
-import { rowsOf, type Db } from '../../db/client';
-import { siteFilter, type Viewer } from '../auth/viewer';
+import { rowsOf, type Db } from '@/db/client';
+import { siteFilter, type Viewer } from '@/lib/auth/viewer';
 
 /** Rows a page shows. */
 export const QUARANTINE_PAGE_SIZE = 25;

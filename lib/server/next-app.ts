@@ -6,7 +6,7 @@ import { createServer, type Server } from 'node:http';
 import { resolve, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import next from 'next';
-import { AppError } from '../errors/app-error';
+import { AppError } from '@/lib/errors/app-error';
 import { isPortFree } from './ports';
 
 export const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '../..');

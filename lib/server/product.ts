@@ -8,15 +8,15 @@
  * in docker-compose, where the ingester is its own service).
  */
 import { sql } from 'drizzle-orm';
-import { loadConfig, type Config } from '../config/env';
-import { AppError } from '../errors/app-error';
-import { createLogger, type Logger } from '../log/logger';
-import { getDatabase, closeDatabase, redactUrl, rowsOf, type DatabaseHandle } from '../../db/client';
+import { loadConfig, type Config } from '@/lib/config/env';
+import { AppError } from '@/lib/errors/app-error';
+import { createLogger, type Logger } from '@/lib/log/logger';
+import { getDatabase, closeDatabase, redactUrl, rowsOf, type DatabaseHandle } from '@/db/client';
 import { registerComponent } from './registry';
 import { startWebServer } from './next-app';
-import { createLivePublisher, type LivePublisher } from '../live/publisher';
-import { getLiveHub } from '../live/hub';
-import { ensureLiveListener, stopLiveListener } from '../live/listener';
+import { createLivePublisher, type LivePublisher } from '@/lib/live/publisher';
+import { getLiveHub } from '@/lib/live/hub';
+import { ensureLiveListener, stopLiveListener } from '@/lib/live/listener';
 
 type Stoppable = { name: string; stop(): Promise<void> };
 
@@ -41,8 +41,8 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   let ingesterCredentials = { username: config.MQTT_USERNAME, password: config.MQTT_PASSWORD };
   let embedded = false;
   if (brokerUrl === undefined) {
-    const { startEmbeddedBroker } = await import('../broker/embedded');
-    const { createBrokerAuthoriser, cutOffOnCredentialChange, newLocalIngesterAccount } = await import('../devices/broker-auth');
+    const { startEmbeddedBroker } = await import('@/lib/broker/embedded');
+    const { createBrokerAuthoriser, cutOffOnCredentialChange, newLocalIngesterAccount } = await import('@/lib/devices/broker-auth');
     const localIngester = newLocalIngesterAccount();
     const broker = await startEmbeddedBroker({
       port: config.MQTT_PORT,
@@ -64,7 +64,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
 
   // Workers publish to the live feed; the host registers them for /api/health.
   const live = createLivePublisher({ handle, log: log.child('live') });
-  const { startIngester } = await import('../ingest/ingester');
+  const { startIngester } = await import('@/lib/ingest/ingester');
   const ingester = await startIngester({
     live,
     handle,
@@ -84,7 +84,7 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   registerComponent('ingester', { state: () => ingester.state() });
   registerLivePublisher(live);
 
-  const { startLiveDiagnosis } = await import('../diagnosis/live');
+  const { startLiveDiagnosis } = await import('@/lib/diagnosis/live');
   const diagnosis = startLiveDiagnosis({
     db: handle.db,
     intervalS: config.DIAGNOSIS_INTERVAL_S,
@@ -125,13 +125,13 @@ async function liveComponent(handle: DatabaseHandle, log: Logger, stack: Stoppab
 }
 
 async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: string, log: Logger, stack: Stoppable[], embedded: boolean) {
-  const { demoFleet } = await import('../simulate/demo-fleet');
-  const { startSimulator, backfill } = await import('../simulate/simulator');
-  const { upsertFleet } = await import('../fleet/queries');
+  const { demoFleet } = await import('@/lib/simulate/demo-fleet');
+  const { startSimulator, backfill } = await import('@/lib/simulate/simulator');
+  const { upsertFleet } = await import('@/lib/fleet/queries');
   await upsertFleet({ db: handle.db, fleet: demoFleet });
   if (handle.backend === 'pglite') {
     // Embedded demo with nobody yet: an admin whose one-time password goes to the console (lib/auth/demo-admin.ts).
-    const { ensureDemoAdmin, demoAdminLines } = await import('../auth/demo-admin');
+    const { ensureDemoAdmin, demoAdminLines } = await import('@/lib/auth/demo-admin');
     const admin = await ensureDemoAdmin({ db: handle.db });
     if (admin) process.stdout.write(demoAdminLines(admin));
   }
@@ -167,8 +167,8 @@ async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: stri
  * from outside (mosquitto_pub). Demo units only; rewritten at each start.
  */
 async function issueDemoCredentials(config: Config, handle: DatabaseHandle, units: ReadonlyArray<{ siteId: string; id: string }>, log: Logger) {
-  const { issueDeviceCredentials } = await import('../devices/queries');
-  const { LOCAL_VIEWER } = await import('../auth/viewer');
+  const { issueDeviceCredentials } = await import('@/lib/devices/queries');
+  const { LOCAL_VIEWER } = await import('@/lib/auth/viewer');
   const { mkdirSync, writeFileSync, chmodSync } = await import('node:fs');
   const { join } = await import('node:path');
   const issued = new Map<string, { username: string; password: string }>();

@@ -7,12 +7,12 @@
  * entry: added, updated, or invalid and why.
  */
 import { inArray } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { sites, units } from '../../db/schema';
-import { canEditSetup, canSeeSite, type Viewer } from '../auth/viewer';
-import { fleetSchema, type Fleet } from '../contract/nameplate';
-import { formatIssues } from '../contract/telemetry';
-import { findFleetProblems, upsertFleet, type FleetUpsertResult } from '../fleet/queries';
+import type { Db } from '@/db/client';
+import { sites, units } from '@/db/schema';
+import { canEditSetup, canSeeSite, type Viewer } from '@/lib/auth/viewer';
+import { fleetSchema, type Fleet } from '@/lib/contract/nameplate';
+import { formatIssues } from '@/lib/contract/telemetry';
+import { findFleetProblems, upsertFleet, type FleetUpsertResult } from '@/lib/fleet/queries';
 
 /** Largest FLEET.json the setup screen takes (some 1,500 units): under the 1 MB a server action accepts. */
 export const MAX_FLEET_FILE_BYTES = 900_000;
@@ -166,7 +166,7 @@ export async function importFleetFile({ db, viewer, raw, apply }: { db: Db; view
   const report: FleetImportReport = { ok: problems.length === 0, entries, problems, fileProblems };
   if (report.ok && apply && fleet) {
     report.applied = await upsertFleet({ db, fleet });
-    const { actorOfViewer, writeAudit } = await import('../auth/audit');
+    const { actorOfViewer, writeAudit } = await import('@/lib/auth/audit');
     await writeAudit({
       db,
       actor: actorOfViewer(viewer),

@@ -5,9 +5,9 @@
  * on. Pure: the server actions and their tests call it.
  */
 import { z } from 'zod';
-import { describeValue } from '../contract/telemetry';
-import { DEFAULT_LIMITS } from '../diagnosis/limits';
-import { diagnosisLimitsSchema, nameplateSchema, siteSchema, type Nameplate, type Site } from '../contract/nameplate';
+import { describeValue } from '@/lib/contract/telemetry';
+import { DEFAULT_LIMITS } from '@/lib/diagnosis/limits';
+import { diagnosisLimitsSchema, nameplateSchema, siteSchema, type Nameplate, type Site } from '@/lib/contract/nameplate';
 
 /** What a form sent, field by field, as typed. */
 export type FormValues = Record<string, string>;

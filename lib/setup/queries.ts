@@ -6,13 +6,13 @@
  * `undefined`, never told apart from one that does not exist.
  */
 import { and, asc, eq, inArray } from 'drizzle-orm';
-import type { Db } from '../../db/client';
-import { sites, units, type SiteRow } from '../../db/schema';
-import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '../auth/viewer';
-import type { Fleet, Nameplate, Site } from '../contract/nameplate';
-import { nameplateOfUnit, upsertFleet } from '../fleet/queries';
+import type { Db } from '@/db/client';
+import { sites, units, type SiteRow } from '@/db/schema';
+import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
+import type { Fleet, Nameplate, Site } from '@/lib/contract/nameplate';
+import { nameplateOfUnit, upsertFleet } from '@/lib/fleet/queries';
 import type { FieldErrors } from './forms';
-import { actorOfViewer, writeAudit } from '../auth/audit';
+import { actorOfViewer, writeAudit } from '@/lib/auth/audit';
 
 /** The fields that differ between two records, as { field: { before, after } } for the audit log. */
 export function changedFields(before: Record<string, unknown>, after: Record<string, unknown>): Record<string, { before: unknown; after: unknown }> {

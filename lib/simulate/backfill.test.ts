@@ -1,10 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import mqtt, { type MqttClient } from 'mqtt';
-import { startEmbeddedBroker, type EmbeddedBroker } from '../broker/embedded';
-import { fleetSchema } from '../contract/nameplate';
-import { parseTelemetrySample, parseTimestampMs } from '../contract/telemetry';
-import { createLogger } from '../log/logger';
-import { freePort } from '../server/ports';
+import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded';
+import { fleetSchema } from '@/lib/contract/nameplate';
+import { parseTelemetrySample, parseTimestampMs } from '@/lib/contract/telemetry';
+import { createLogger } from '@/lib/log/logger';
+import { freePort } from '@/lib/server/ports';
 import { backfill, payloadsOf, MAX_BACKFILL_PAYLOAD_BYTES } from './backfill';
 import { demoFleet } from './demo-fleet';
 import type { PublishedSample } from './machine';

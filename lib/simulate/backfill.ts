@@ -8,8 +8,8 @@
  * broker's queue for it (Mosquitto drops QoS 1 messages beyond
  * max_queued_messages, 1000 by default).
  */
-import type { Logger } from '../log/logger';
-import { AppError } from '../errors/app-error';
+import type { Logger } from '@/lib/log/logger';
+import { AppError } from '@/lib/errors/app-error';
 import { demoFleet } from './demo-fleet';
 import { UnitDevice, redactUrl, type CredentialsFor } from './device';
 import { buildFleetModels, parseFleet, type FleetModelOptions } from './fleet-models';

@@ -1,8 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import mqtt, { type MqttClient } from 'mqtt';
-import { startEmbeddedBroker, type EmbeddedBroker } from '../broker/embedded';
-import { createLogger } from '../log/logger';
-import { freePort } from '../server/ports';
+import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded';
+import { createLogger } from '@/lib/log/logger';
+import { freePort } from '@/lib/server/ports';
 import { fleetSubset, parseSimulateArgs, runSimulate, USAGE } from './cli';
 import { demoFleet } from './demo-fleet';
 

@@ -3,9 +3,9 @@
  * history first (`--backfill DAYS`, then exit, or `--live` to go on).
  */
 import { parseArgs } from 'node:util';
-import { loadConfig } from '../config/env';
-import { AppError } from '../errors/app-error';
-import { createLogger, type Logger } from '../log/logger';
+import { loadConfig } from '@/lib/config/env';
+import { AppError } from '@/lib/errors/app-error';
+import { createLogger, type Logger } from '@/lib/log/logger';
 import { backfill } from './backfill';
 import { demoFleet } from './demo-fleet';
 import { redactUrl } from './device';

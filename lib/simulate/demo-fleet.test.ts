@@ -1,15 +1,15 @@
 import { beforeAll, describe, expect, it } from 'vitest';
-import { fleetSchema } from '../contract/nameplate';
-import { parseTelemetrySample, type TelemetrySample } from '../contract/telemetry';
-import { diagnoseSamples, type DiagnosisResult } from '../diagnosis/diagnose';
-import { hydroPowerKw } from '../energy/hydro-power';
-import { REFERENCE_AIR_DENSITY_KG_M3 } from '../energy/air-density';
-import { lineVoltageUnbalancePct } from '../physics/unbalance';
+import { fleetSchema } from '@/lib/contract/nameplate';
+import { parseTelemetrySample, type TelemetrySample } from '@/lib/contract/telemetry';
+import { diagnoseSamples, type DiagnosisResult } from '@/lib/diagnosis/diagnose';
+import { hydroPowerKw } from '@/lib/energy/hydro-power';
+import { REFERENCE_AIR_DENSITY_KG_M3 } from '@/lib/energy/air-density';
+import { lineVoltageUnbalancePct } from '@/lib/physics/unbalance';
 import { DEMO_FAULT_LEAD_DAYS, demoClimates, demoFleet, demoUnitScenarios } from './demo-fleet';
 import type { FaultKind } from './faults';
 import { buildFleetModels, type SimulatedUnit } from './fleet-models';
 import { LOAD_POWER_FACTOR, ratedWindMs } from './machine';
-import { generatorTerminals } from '../physics/generator-model';
+import { generatorTerminals } from '@/lib/physics/generator-model';
 
 const fleet = fleetSchema.parse(demoFleet);
 

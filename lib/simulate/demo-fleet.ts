@@ -32,7 +32,7 @@
  * - qv-04: overspeed in a strong gust every 30 minutes, rotor past maxRpm
  *   for several seconds.
  */
-import type { Fleet } from '../contract/nameplate';
+import type { Fleet } from '@/lib/contract/nameplate';
 import type { UnitScenario } from './machine';
 import type { SiteClimate } from './weather';
 

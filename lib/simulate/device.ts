@@ -4,8 +4,8 @@
  * `offline` last will, telemetry at QoS 1.
  */
 import mqtt, { type MqttClient } from 'mqtt';
-import { AppError } from '../errors/app-error';
-import type { Logger } from '../log/logger';
+import { AppError } from '@/lib/errors/app-error';
+import type { Logger } from '@/lib/log/logger';
 
 /** Topic of a unit's telemetry (contract, section 3). */
 export function telemetryTopic(siteId: string, unitId: string): string {

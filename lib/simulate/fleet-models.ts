@@ -2,9 +2,9 @@
  * Builds the simulated units of a fleet: one weather per site, one model per
  * unit, the scenario (loggers, faults) from the demo tables or defaults.
  */
-import { fleetSchema, type Fleet, type Nameplate } from '../contract/nameplate';
-import { formatIssues } from '../contract/telemetry';
-import { AppError } from '../errors/app-error';
+import { fleetSchema, type Fleet, type Nameplate } from '@/lib/contract/nameplate';
+import { formatIssues } from '@/lib/contract/telemetry';
+import { AppError } from '@/lib/errors/app-error';
 import { DEMO_FAULT_LEAD_DAYS, demoClimates, demoUnitScenarios } from './demo-fleet';
 import type { FaultSettings } from './faults';
 import { DEFAULT_UNIT_SCENARIO, UnitModel, type UnitScenario } from './machine';

@@ -1,13 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { fleetSchema, type Nameplate } from '../contract/nameplate';
-import { SQRT3, recoverPhaseEmf } from '../physics/emf';
-import { keAtMagnetC, remanenceCoeffPctPerC } from '../physics/magnet-temperature';
-import { reactanceOhm } from '../physics/reactance';
-import { lineVoltageUnbalancePct } from '../physics/unbalance';
-import { copperOhmAt } from '../physics/winding-resistance';
-import { powerCurveLookup } from '../energy/power-curve';
-import { normaliseWindSpeedMs } from '../energy/air-density';
-import { hydroPowerKw } from '../energy/hydro-power';
+import { fleetSchema, type Nameplate } from '@/lib/contract/nameplate';
+import { SQRT3, recoverPhaseEmf } from '@/lib/physics/emf';
+import { keAtMagnetC, remanenceCoeffPctPerC } from '@/lib/physics/magnet-temperature';
+import { reactanceOhm } from '@/lib/physics/reactance';
+import { lineVoltageUnbalancePct } from '@/lib/physics/unbalance';
+import { copperOhmAt } from '@/lib/physics/winding-resistance';
+import { powerCurveLookup } from '@/lib/energy/power-curve';
+import { normaliseWindSpeedMs } from '@/lib/energy/air-density';
+import { hydroPowerKw } from '@/lib/energy/hydro-power';
 import { demoFleet, demoUnitScenarios } from './demo-fleet';
 import type { FaultPlan } from './faults';
 import {

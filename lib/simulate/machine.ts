@@ -21,15 +21,15 @@
  * relaxing to its coolant with a time constant; the magnets sit at the
  * stator temperature.
  */
-import type { Nameplate } from '../contract/nameplate';
-import { TELEMETRY_FIELDS } from '../contract/telemetry';
-import { SQRT3 } from '../physics/emf';
-import { generatorTerminals, type GeneratorSpec, type TerminalReadings } from '../physics/generator-model';
-import { copperOhmAt } from '../physics/winding-resistance';
-import { reactanceOhm } from '../physics/reactance';
-import { powerCurveLookup } from '../energy/power-curve';
-import { normaliseWindSpeedMs } from '../energy/air-density';
-import { hydroPowerKw } from '../energy/hydro-power';
+import type { Nameplate } from '@/lib/contract/nameplate';
+import { TELEMETRY_FIELDS } from '@/lib/contract/telemetry';
+import { SQRT3 } from '@/lib/physics/emf';
+import { generatorTerminals, type GeneratorSpec, type TerminalReadings } from '@/lib/physics/generator-model';
+import { copperOhmAt } from '@/lib/physics/winding-resistance';
+import { reactanceOhm } from '@/lib/physics/reactance';
+import { powerCurveLookup } from '@/lib/energy/power-curve';
+import { normaliseWindSpeedMs } from '@/lib/energy/air-density';
+import { hydroPowerKw } from '@/lib/energy/hydro-power';
 import { faultEffects, validateFaultPlan, type FaultEffects, type FaultPlan, type FaultSettings } from './faults';
 import { Ar1, gaussian, mulberry32, seedFor } from './random';
 import { zoneOffsetMinutes, type WeatherSource } from './weather';

@@ -1,10 +1,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import mqtt, { type MqttClient } from 'mqtt';
-import { startEmbeddedBroker, type EmbeddedBroker } from '../broker/embedded';
-import { fleetSchema } from '../contract/nameplate';
-import { parseTelemetrySample } from '../contract/telemetry';
-import { createLogger } from '../log/logger';
-import { freePort } from '../server/ports';
+import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded';
+import { fleetSchema } from '@/lib/contract/nameplate';
+import { parseTelemetrySample } from '@/lib/contract/telemetry';
+import { createLogger } from '@/lib/log/logger';
+import { freePort } from '@/lib/server/ports';
 import { demoFleet } from './demo-fleet';
 import { startSimulator } from './simulator';
 

@@ -5,8 +5,8 @@
  * The simulator never touches the database: what the product shows of it
  * came through the broker and the ingester.
  */
-import type { Logger } from '../log/logger';
-import { AppError } from '../errors/app-error';
+import type { Logger } from '@/lib/log/logger';
+import { AppError } from '@/lib/errors/app-error';
 import { demoFleet } from './demo-fleet';
 import { UnitDevice, redactUrl, type CredentialsFor } from './device';
 import { liveOutage } from './faults';

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { diagnoseSamples, type DiagnosisNameplate } from '../diagnosis/diagnose';
+import { diagnoseSamples, type DiagnosisNameplate } from '@/lib/diagnosis/diagnose';
 import { emfChart, type EmfSample } from './emf-points';
-import { fitThroughOrigin } from '../physics/through-origin-fit';
+import { fitThroughOrigin } from '@/lib/physics/through-origin-fit';
 
 const nameplate: DiagnosisNameplate = {
   ratedRpm: 300,

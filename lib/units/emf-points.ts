@@ -6,12 +6,12 @@
  * built from the same lib/physics functions; a healthy unit's corrected points
  * lie on the line, a weakened one's below it.
  */
-import type { DiagnosisNameplate } from '../diagnosis/diagnose';
-import { resolveLimits } from '../diagnosis/limits';
-import { keTemperatureFactor, remanenceCoeffPctPerC } from '../physics/magnet-temperature';
-import { meanOfPhases } from '../physics/phase-mean';
-import { electricalHz } from '../physics/synchronous-speed';
-import { lineEmfBehindTerminals, loadPowerFactor, magnetTempC, windingOhm, windingTempC } from '../diagnosis/sample-emf';
+import type { DiagnosisNameplate } from '@/lib/diagnosis/diagnose';
+import { resolveLimits } from '@/lib/diagnosis/limits';
+import { keTemperatureFactor, remanenceCoeffPctPerC } from '@/lib/physics/magnet-temperature';
+import { meanOfPhases } from '@/lib/physics/phase-mean';
+import { electricalHz } from '@/lib/physics/synchronous-speed';
+import { lineEmfBehindTerminals, loadPowerFactor, magnetTempC, windingOhm, windingTempC } from '@/lib/diagnosis/sample-emf';
 
 /** The sample fields the chart needs (absent values null). */
 export interface EmfSample {

@@ -6,16 +6,16 @@
  * downsampled on the server (lib/charts/downsample.ts).
  */
 import { and, eq, sql } from 'drizzle-orm';
-import { rowsOf, type Db } from '../../db/client';
-import { sites, units, unitHealth, unitStatus, type SiteRow, type StoredFinding, type UnitRow } from '../../db/schema';
-import { canSeeSite, type Viewer } from '../auth/viewer';
-import { downsampleSeries, thinEvenly, DEFAULT_MAX_POINTS, type SeriesBucket, type SeriesPoint } from '../charts/downsample';
-import type { Nameplate } from '../contract/nameplate';
-import type { DiagnosisNameplate } from '../diagnosis/diagnose';
-import { resolveLimits, type ResolvedLimits } from '../diagnosis/limits';
-import { keTrend, type KeTrend } from '../diagnosis/trend';
-import { nameplateOfUnit } from '../fleet/queries';
-import { unitStateOf, type UnitStateView } from '../fleet/unit-state';
+import { rowsOf, type Db } from '@/db/client';
+import { sites, units, unitHealth, unitStatus, type SiteRow, type StoredFinding, type UnitRow } from '@/db/schema';
+import { canSeeSite, type Viewer } from '@/lib/auth/viewer';
+import { downsampleSeries, thinEvenly, DEFAULT_MAX_POINTS, type SeriesBucket, type SeriesPoint } from '@/lib/charts/downsample';
+import type { Nameplate } from '@/lib/contract/nameplate';
+import type { DiagnosisNameplate } from '@/lib/diagnosis/diagnose';
+import { resolveLimits, type ResolvedLimits } from '@/lib/diagnosis/limits';
+import { keTrend, type KeTrend } from '@/lib/diagnosis/trend';
+import { nameplateOfUnit } from '@/lib/fleet/queries';
+import { unitStateOf, type UnitStateView } from '@/lib/fleet/unit-state';
 import { emfChart, type EmfChart, type EmfSample } from './emf-points';
 
 const HOUR_MS = 3_600_000;

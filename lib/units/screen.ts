@@ -3,9 +3,9 @@
  * against speed), its Ke history and trend, and the time series of the range asked.
  */
 import { z } from 'zod';
-import { getDatabase, type Db } from '../../db/client';
-import { currentViewer, type Viewer } from '../auth/viewer';
-import { SLUG } from '../contract/nameplate';
+import { getDatabase, type Db } from '@/db/client';
+import { currentViewer, type Viewer } from '@/lib/auth/viewer';
+import { SLUG } from '@/lib/contract/nameplate';
 import {
   getUnitEmfView,
   getUnitKeHistory,
@@ -18,7 +18,7 @@ import {
   type UnitSeries,
   type UnitView,
 } from './queries';
-import type { KeTrend } from '../diagnosis/trend';
+import type { KeTrend } from '@/lib/diagnosis/trend';
 
 export interface UnitScreen {
   readonly view: UnitView;

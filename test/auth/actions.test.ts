@@ -8,13 +8,13 @@
 import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { addPerson, viewerOfPerson } from '../../lib/auth/people';
-import type { Role } from '../../lib/auth/roles';
-import type { Viewer } from '../../lib/auth/viewer';
-import { upsertFleet } from '../../lib/fleet/queries';
-import { formOfNameplate } from '../../lib/setup/forms';
-import { createTestDatabase, type TestDatabase } from '../support/backend';
-import { testFleet, testTag } from '../support/ingest';
+import { addPerson, viewerOfPerson } from '@/lib/auth/people';
+import type { Role } from '@/lib/auth/roles';
+import type { Viewer } from '@/lib/auth/viewer';
+import { upsertFleet } from '@/lib/fleet/queries';
+import { formOfNameplate } from '@/lib/setup/forms';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { testFleet, testTag } from '@/test/support/ingest';
 
 const state = vi.hoisted(() => ({ viewer: undefined as Viewer | undefined }));
 
@@ -34,8 +34,8 @@ vi.mock('next/navigation', () => ({
   },
 }));
 vi.mock('next/cache', () => ({ revalidatePath: () => undefined }));
-vi.mock('../../lib/auth/viewer', async (original) => ({
-  ...(await original<typeof import('../../lib/auth/viewer')>()),
+vi.mock('@/lib/auth/viewer', async (original) => ({
+  ...(await original<typeof import('@/lib/auth/viewer')>()),
   // Nobody signed in: what lib/auth/request.ts does on a page or action.
   currentViewer: async () => {
     if (!state.viewer) throw new Error('REDIRECT /sign-in?next=%2F');
@@ -164,8 +164,8 @@ beforeAll(async () => {
   const target = await addPerson({ db: t.handle.db, actor, person: { email: `target-${tag}@test.invalid`, role: 'admin', password: 'headrace culvert grille' } });
   if (!target.ok) throw new Error('target');
   targetId = target.person.id;
-  const { createApiToken } = await import('../../lib/auth/api-tokens');
-  const { createDisplayLink } = await import('../../lib/auth/display-links');
+  const { createApiToken } = await import('@/lib/auth/api-tokens');
+  const { createDisplayLink } = await import('@/lib/auth/display-links');
   tokenId = (await createApiToken({ db: t.handle.db, actor, person: target.person, name: 'x' })).row.id;
   const link = await createDisplayLink({ db: t.handle.db, actor, createdBy: targetId, siteId: siteA, name: 'x' });
   if (link.ok) linkId = link.row.id;

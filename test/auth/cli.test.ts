@@ -9,9 +9,9 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { openDatabase } from '../../db/client';
-import { apiTokens } from '../../db/schema';
-import { hashSecret } from '../../lib/auth/secrets';
+import { openDatabase } from '@/db/client';
+import { apiTokens } from '@/db/schema';
+import { hashSecret } from '@/lib/auth/secrets';
 
 const dir = mkdtempSync(join(tmpdir(), 'millrace-cli-people-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));

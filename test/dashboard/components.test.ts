@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { createElement } from 'react';
 import { renderToStaticMarkup } from 'react-dom/server';
-import { LocalTime } from '../../app/_components/local-time';
-import { StateBadge } from '../../app/_components/state-badge';
-import { UNIT_STATES } from '../../lib/fleet/unit-state';
+import { LocalTime } from '@/app/_components/local-time';
+import { StateBadge } from '@/app/_components/state-badge';
+import { UNIT_STATES } from '@/lib/fleet/unit-state';
 
 describe('LocalTime', () => {
   it('shows the site’s time of day, with UTC in the title and as the description it shows on focus', () => {

@@ -6,11 +6,11 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
-import { createTestDatabase, type TestDatabase } from '../support/backend';
-import { upsertFleet, getFleetSites, getSiteView, getSitesWithUnitIds } from '../../lib/fleet/queries';
-import { getUnitView, getUnitSeries, getUnitHealthReport, getUnitEmfView, getUnitKeHistory } from '../../lib/units/queries';
-import { LOCAL_VIEWER, type Viewer } from '../../lib/auth/viewer';
-import type { Fleet } from '../../lib/contract/nameplate';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { upsertFleet, getFleetSites, getSiteView, getSitesWithUnitIds } from '@/lib/fleet/queries';
+import { getUnitView, getUnitSeries, getUnitHealthReport, getUnitEmfView, getUnitKeHistory } from '@/lib/units/queries';
+import { LOCAL_VIEWER, type Viewer } from '@/lib/auth/viewer';
+import type { Fleet } from '@/lib/contract/nameplate';
 
 let t: TestDatabase;
 // 13:00 UTC: in Auckland (UTC+13 in December) it is already 02:00 the next day.
@@ -234,7 +234,7 @@ describe('read API', () => {
   });
 
   it('answers JSON with the contract’s errors: 400 naming the parameter, 404 for an unknown or unseen unit', async () => {
-    const { sitesAnswer, unitHealthAnswer } = await import('../../lib/api/read');
+    const { sitesAnswer, unitHealthAnswer } = await import('@/lib/api/read');
     const db = t.handle.db;
     const sites = await sitesAnswer({ db, viewer: LOCAL_VIEWER });
     expect(sites.status).toBe(200);

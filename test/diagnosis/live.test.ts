@@ -5,17 +5,17 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
-import { rowsOf } from '../../db/client';
-import { unitHealthHistory } from '../../db/schema';
-import { fleetSchema } from '../../lib/contract/nameplate';
-import type { TelemetrySample } from '../../lib/contract/telemetry';
-import { upsertFleet } from '../../lib/fleet/queries';
-import { insertSampleRows, upsertUnitLastSeen } from '../../lib/ingest/queries';
-import { inTransaction } from '../../lib/ingest/sql';
-import { createLogger } from '../../lib/log/logger';
-import { runDiagnosisPass, startLiveDiagnosis } from '../../lib/diagnosis/live';
-import { backendDescription, createTestDatabase, type TestDatabase } from '../support/backend';
-import { TEST_NAMEPLATE, syntheticSamples, type SyntheticOptions } from '../support/synthetic-unit';
+import { rowsOf } from '@/db/client';
+import { unitHealthHistory } from '@/db/schema';
+import { fleetSchema } from '@/lib/contract/nameplate';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
+import { upsertFleet } from '@/lib/fleet/queries';
+import { insertSampleRows, upsertUnitLastSeen } from '@/lib/ingest/queries';
+import { inTransaction } from '@/lib/ingest/sql';
+import { createLogger } from '@/lib/log/logger';
+import { runDiagnosisPass, startLiveDiagnosis } from '@/lib/diagnosis/live';
+import { backendDescription, createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { TEST_NAMEPLATE, syntheticSamples, type SyntheticOptions } from '@/test/support/synthetic-unit';
 
 const HOUR = 3_600_000;
 const DAY = 24 * HOUR;

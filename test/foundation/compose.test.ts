@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { parse } from 'yaml';
-import { knownVariables } from '../../lib/config/env';
+import { knownVariables } from '@/lib/config/env';
 
 // No Docker engine runs where these tests run, so the compose file is checked
 // by reading it: every variable it passes to a millrace service must be one

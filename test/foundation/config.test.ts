@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { knownVariables, loadConfig } from '../../lib/config/env';
+import { knownVariables, loadConfig } from '@/lib/config/env';
 
 describe('configuration', () => {
   it('has the documented defaults', () => {

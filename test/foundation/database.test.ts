@@ -4,10 +4,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, rowsOf } from '../../db/client';
-import { dropPartitionsBefore, ensureMonthlyPartitions, listPartitions, partitionName } from '../../db/partitions';
-import { deleteQuarantineBefore } from '../../lib/ingest/maintenance';
-import { createTestDatabase, realDatabaseUrl, type TestDatabase } from '../support/backend';
+import { openDatabase, rowsOf } from '@/db/client';
+import { dropPartitionsBefore, ensureMonthlyPartitions, listPartitions, partitionName } from '@/db/partitions';
+import { deleteQuarantineBefore } from '@/lib/ingest/maintenance';
+import { createTestDatabase, realDatabaseUrl, type TestDatabase } from '@/test/support/backend';
 
 let testDb: TestDatabase;
 beforeAll(async () => {
@@ -89,7 +89,7 @@ describe(`database schema on ${realDatabaseUrl ? 'PostgreSQL' : 'PGlite'}`, () =
   });
 
   it('applies migrations idempotently', async () => {
-    const { migrateDatabase } = await import('../../db/client');
+    const { migrateDatabase } = await import('@/db/client');
     await expect(migrateDatabase(testDb.handle)).resolves.toBeUndefined();
   });
 });

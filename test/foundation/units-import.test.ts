@@ -3,10 +3,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { main } from '../../lib/cli/main';
-import { getUnits, getSites } from '../../lib/fleet/queries';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { createPostgresDatabase, realDatabaseUrl } from '../support/backend';
+import { main } from '@/lib/cli/main';
+import { getUnits, getSites } from '@/lib/fleet/queries';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { createPostgresDatabase, realDatabaseUrl } from '@/test/support/backend';
 
 // The contract's section 4 fixes this command: all or nothing, every problem
 // printed with its path, exit status 2. The fleet below is invented.

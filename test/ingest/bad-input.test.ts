@@ -7,8 +7,8 @@
  * future, before 2000), registered units under their own site.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startIngester, type Ingester } from '../../lib/ingest/ingester';
-import { backendDescription, createTestDatabase, type TestDatabase } from '../support/backend';
+import { startIngester, type Ingester } from '@/lib/ingest/ingester';
+import { backendDescription, createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import {
   openPublisher,
   queryRows,
@@ -20,7 +20,7 @@ import {
   waitFor,
   type Outgoing,
   type TestBroker,
-} from '../support/ingest';
+} from '@/test/support/ingest';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 40, hydroUnits: 1 });

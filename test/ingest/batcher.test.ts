@@ -3,11 +3,11 @@
  * a message arriving and its acknowledgement when connections come and go.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { createBatcher, type Batcher, type PendingMessage } from '../../lib/ingest/batcher';
-import { openIngestDatabase, type IngestDatabase } from '../../lib/ingest/sql';
-import { createUnitDirectory } from '../../lib/ingest/unit-directory';
-import { decodedMessage, queryRows, registerFleet, testFleet, testLogger, testTag, waitFor } from '../support/ingest';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { createBatcher, type Batcher, type PendingMessage } from '@/lib/ingest/batcher';
+import { openIngestDatabase, type IngestDatabase } from '@/lib/ingest/sql';
+import { createUnitDirectory } from '@/lib/ingest/unit-directory';
+import { decodedMessage, queryRows, registerFleet, testFleet, testLogger, testTag, waitFor } from '@/test/support/ingest';
 
 const fleet = testFleet(testTag(), { windUnits: 1, hydroUnits: 0 });
 const unit = fleet.units[0]!;

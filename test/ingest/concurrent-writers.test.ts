@@ -11,14 +11,14 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import postgres from 'postgres';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { integrateIntoBuckets } from '../../lib/energy/integrate';
-import { openIngestDatabase, type IngestDatabase } from '../../lib/ingest/sql';
-import { createUnitDirectory } from '../../lib/ingest/unit-directory';
-import { writeBatch, type DecodedMessage } from '../../lib/ingest/writer';
-import { createPostgresDatabase } from '../support/backend';
-import { adminDatabaseUrl, decodedMessage, queryRows, registerFleet, testFleet, testTag, waitFor } from '../support/ingest';
-import { postgresServer, skipUnless } from '../support/services';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { integrateIntoBuckets } from '@/lib/energy/integrate';
+import { openIngestDatabase, type IngestDatabase } from '@/lib/ingest/sql';
+import { createUnitDirectory } from '@/lib/ingest/unit-directory';
+import { writeBatch, type DecodedMessage } from '@/lib/ingest/writer';
+import { createPostgresDatabase } from '@/test/support/backend';
+import { adminDatabaseUrl, decodedMessage, queryRows, registerFleet, testFleet, testTag, waitFor } from '@/test/support/ingest';
+import { postgresServer, skipUnless } from '@/test/support/services';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 1, hydroUnits: 0 });

@@ -8,16 +8,16 @@
  * (PostgreSQL manual, COPY, "Binary Format" and "Date/Time Types").
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { ensureMonthlyPartitions } from '../../db/partitions';
-import { VALUE_FIELDS } from '../../lib/contract/telemetry';
-import { writeNewSamples, type SampleRowRefs } from '../../lib/ingest/queries';
-import { sampleBlockOf, type SampleBlock } from '../../lib/ingest/sample-block';
-import { openIngestDatabase, type IngestDatabase } from '../../lib/ingest/sql';
-import type { TelemetrySample } from '../../lib/contract/telemetry';
-import { createPostgresDatabase } from '../support/backend';
-import { adminDatabaseUrl, queryRows, registerFleet, testFleet, testTag } from '../support/ingest';
-import { postgresServer, skipUnless } from '../support/services';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { ensureMonthlyPartitions } from '@/db/partitions';
+import { VALUE_FIELDS } from '@/lib/contract/telemetry';
+import { writeNewSamples, type SampleRowRefs } from '@/lib/ingest/queries';
+import { sampleBlockOf, type SampleBlock } from '@/lib/ingest/sample-block';
+import { openIngestDatabase, type IngestDatabase } from '@/lib/ingest/sql';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
+import { createPostgresDatabase } from '@/test/support/backend';
+import { adminDatabaseUrl, queryRows, registerFleet, testFleet, testTag } from '@/test/support/ingest';
+import { postgresServer, skipUnless } from '@/test/support/services';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 2, hydroUnits: 0 });

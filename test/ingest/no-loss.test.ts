@@ -10,11 +10,11 @@
  * embedded broker keeps sessions in memory only).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { startEmbeddedBroker } from '../../lib/broker/embedded';
-import { startIngester } from '../../lib/ingest/ingester';
-import { freePort } from '../../lib/server/ports';
-import { createPostgresDatabase } from '../support/backend';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { startEmbeddedBroker } from '@/lib/broker/embedded';
+import { startIngester } from '@/lib/ingest/ingester';
+import { freePort } from '@/lib/server/ports';
+import { createPostgresDatabase } from '@/test/support/backend';
 import {
   adminDatabaseUrl,
   openPublisher,
@@ -27,10 +27,10 @@ import {
   testTag,
   waitFor,
   type Outgoing,
-} from '../support/ingest';
-import { startMosquitto, type TestMosquitto } from '../support/mosquitto';
-import { mosquitto as mosquittoBinary, postgresServer, skipUnless } from '../support/services';
-import { startTcpProxy } from '../support/tcp-proxy';
+} from '@/test/support/ingest';
+import { startMosquitto, type TestMosquitto } from '@/test/support/mosquitto';
+import { mosquitto as mosquittoBinary, postgresServer, skipUnless } from '@/test/support/services';
+import { startTcpProxy } from '@/test/support/tcp-proxy';
 
 const SAMPLES_PER_MESSAGE = 10;
 const MESSAGES_PER_UNIT = 300;

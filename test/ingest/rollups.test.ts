@@ -6,10 +6,10 @@
  * ingester's. Presence and last-seen times land in unit_status.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { integrateIntoBuckets } from '../../lib/energy/integrate';
-import { startIngester, type Ingester } from '../../lib/ingest/ingester';
-import { backendDescription, createTestDatabase, type TestDatabase } from '../support/backend';
-import { openPublisher, queryRows, registerFleet, startTestBroker, testFleet, testLogger, testTag, waitFor, type Outgoing, type TestBroker } from '../support/ingest';
+import { integrateIntoBuckets } from '@/lib/energy/integrate';
+import { startIngester, type Ingester } from '@/lib/ingest/ingester';
+import { backendDescription, createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { openPublisher, queryRows, registerFleet, startTestBroker, testFleet, testLogger, testTag, waitFor, type Outgoing, type TestBroker } from '@/test/support/ingest';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 3, hydroUnits: 1 });

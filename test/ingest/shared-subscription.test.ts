@@ -7,13 +7,13 @@
  * other's neighbouring samples.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { integrateIntoBuckets } from '../../lib/energy/integrate';
-import { startIngester, type Ingester } from '../../lib/ingest/ingester';
-import { createPostgresDatabase } from '../support/backend';
-import { adminDatabaseUrl, openPublisher, queryRows, registerFleet, samplesPayload, testFleet, testLogger, testTag, waitFor, type Outgoing } from '../support/ingest';
-import { startMosquitto, type TestMosquitto } from '../support/mosquitto';
-import { mosquitto as mosquittoBinary, postgresServer, skipUnless } from '../support/services';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { integrateIntoBuckets } from '@/lib/energy/integrate';
+import { startIngester, type Ingester } from '@/lib/ingest/ingester';
+import { createPostgresDatabase } from '@/test/support/backend';
+import { adminDatabaseUrl, openPublisher, queryRows, registerFleet, samplesPayload, testFleet, testLogger, testTag, waitFor, type Outgoing } from '@/test/support/ingest';
+import { startMosquitto, type TestMosquitto } from '@/test/support/mosquitto';
+import { mosquitto as mosquittoBinary, postgresServer, skipUnless } from '@/test/support/services';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 4, hydroUnits: 0 });

@@ -7,15 +7,15 @@
  * diagnosis event from the live diagnosis.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
-import { runDiagnosisPass } from '../../lib/diagnosis/live';
-import { startIngester, type Ingester } from '../../lib/ingest/ingester';
-import { createLiveHub, type LiveHub, type StampedEvent } from '../../lib/live/hub';
-import { startLiveListener, type LiveListener } from '../../lib/live/listener';
-import { createLivePublisher } from '../../lib/live/publisher';
-import { createPostgresDatabase } from '../support/backend';
-import { openPublisher, queryRows, registerFleet, startTestBroker, testFleet, testLogger, testTag, waitFor, type TestBroker } from '../support/ingest';
-import { postgresServer, skipUnless } from '../support/services';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
+import { runDiagnosisPass } from '@/lib/diagnosis/live';
+import { startIngester, type Ingester } from '@/lib/ingest/ingester';
+import { createLiveHub, type LiveHub, type StampedEvent } from '@/lib/live/hub';
+import { startLiveListener, type LiveListener } from '@/lib/live/listener';
+import { createLivePublisher } from '@/lib/live/publisher';
+import { createPostgresDatabase } from '@/test/support/backend';
+import { openPublisher, queryRows, registerFleet, startTestBroker, testFleet, testLogger, testTag, waitFor, type TestBroker } from '@/test/support/ingest';
+import { postgresServer, skipUnless } from '@/test/support/services';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 2, hydroUnits: 1 });

@@ -8,23 +8,23 @@
  * "Server-sent events" (event, id, retry fields; comment lines start with a colon).
  */
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
-import { LOCAL_VIEWER, type Viewer } from '../../lib/auth/viewer';
-import { closeDatabase, getDatabase } from '../../db/client';
-import { upsertFleet } from '../../lib/fleet/queries';
-import { getLiveHub } from '../../lib/live/hub';
-import type { LiveEvent } from '../../lib/live/events';
-import { testFleet, testTag } from '../support/ingest';
+import { LOCAL_VIEWER, type Viewer } from '@/lib/auth/viewer';
+import { closeDatabase, getDatabase } from '@/db/client';
+import { upsertFleet } from '@/lib/fleet/queries';
+import { getLiveHub } from '@/lib/live/hub';
+import type { LiveEvent } from '@/lib/live/events';
+import { testFleet, testTag } from '@/test/support/ingest';
 
 // The viewer of each request, as lib/auth/viewer.ts would read it from the session.
 let asViewer: Viewer = LOCAL_VIEWER;
-vi.mock('../../lib/auth/viewer', async (original) => ({
-  ...(await original<typeof import('../../lib/auth/viewer')>()),
+vi.mock('@/lib/auth/viewer', async (original) => ({
+  ...(await original<typeof import('@/lib/auth/viewer')>()),
   currentViewer: async () => asViewer,
 }));
 
 const LIMIT = 3;
 process.env.LIVE_MAX_STREAMS = String(LIMIT);
-const { GET } = await import('../../app/api/live/route');
+const { GET } = await import('@/app/api/live/route');
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 2, hydroUnits: 1 });

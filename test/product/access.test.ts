@@ -15,13 +15,13 @@
 import { readdirSync, statSync } from 'node:fs';
 import { join, relative, sep } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase } from '../../db/client';
-import { createApiToken } from '../../lib/auth/api-tokens';
-import { createDisplayLink } from '../../lib/auth/display-links';
-import { getPersonByEmail } from '../../lib/auth/people';
-import { addTestAccount, type TestAccount } from '../support/accounts';
-import { testFleet, testTag } from '../support/ingest';
-import { startProductProcess, type RunningProduct } from '../support/product';
+import { openDatabase } from '@/db/client';
+import { createApiToken } from '@/lib/auth/api-tokens';
+import { createDisplayLink } from '@/lib/auth/display-links';
+import { getPersonByEmail } from '@/lib/auth/people';
+import { addTestAccount, type TestAccount } from '@/test/support/accounts';
+import { testFleet, testTag } from '@/test/support/ingest';
+import { startProductProcess, type RunningProduct } from '@/test/support/product';
 import { prepareProduct, type PreparedProduct } from './prepare';
 
 type Caller = 'admin' | 'operator' | 'crew' | 'owner' | 'nobody';

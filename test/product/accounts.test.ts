@@ -8,9 +8,9 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
-import { REFUSED_MESSAGE } from '../../lib/auth/sign-in';
-import { startProductProcess, type RunningProduct } from '../support/product';
-import { chromium, skipUnless } from '../support/services';
+import { REFUSED_MESSAGE } from '@/lib/auth/sign-in';
+import { startProductProcess, type RunningProduct } from '@/test/support/product';
+import { chromium, skipUnless } from '@/test/support/services';
 import { launchBrowser, screenshots } from './browser';
 
 let product: RunningProduct;

@@ -7,7 +7,7 @@ import { mkdirSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { chromium as playwright, type BrowserContext, type Page } from 'playwright-core';
-import { chromium } from '../support/services';
+import { chromium } from '@/test/support/services';
 
 /** A fresh Chromium profile, headless. */
 export function launchBrowser(): Promise<BrowserContext> {

@@ -9,8 +9,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext, Page } from 'playwright-core';
-import { eventually, startProductProcess, type RunningProduct } from '../support/product';
-import { chromium, launchChromium, skipUnless } from '../support/services';
+import { eventually, startProductProcess, type RunningProduct } from '@/test/support/product';
+import { chromium, launchChromium, skipUnless } from '@/test/support/services';
 import { screenshots, scrollsSideways } from './browser';
 
 const FAULT_VERDICTS = ['demagnetised', 'shorted-turns', 'speed-sensor-fault'];

@@ -9,10 +9,10 @@ import { promisify } from 'node:util';
 import mqtt, { type MqttClient } from 'mqtt';
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { realDatabaseUrl } from '../support/backend';
-import { testFleet, testTag } from '../support/ingest';
-import { issueDeviceCredentialsOnScreen, startProductProcess, type RunningProduct } from '../support/product';
-import { chromium, skipUnless } from '../support/services';
+import { realDatabaseUrl } from '@/test/support/backend';
+import { testFleet, testTag } from '@/test/support/ingest';
+import { issueDeviceCredentialsOnScreen, startProductProcess, type RunningProduct } from '@/test/support/product';
+import { chromium, skipUnless } from '@/test/support/services';
 import { launchBrowser, screenshots } from './browser';
 import { prepareProduct, type PreparedProduct } from './prepare';
 

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startProductProcess, type RunningProduct } from '../support/product';
+import { startProductProcess, type RunningProduct } from '@/test/support/product';
 
 // Start-up refusals and the empty fleet: a port in use stops start-up with one
 // line naming it and the way out; never another port silently.

@@ -9,10 +9,10 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import mqtt, { type MqttClient } from 'mqtt';
 import type { BrowserContext, Page } from 'playwright-core';
-import { VERDICT_LABEL } from '../../lib/diagnosis/vocabulary';
-import { startProductProcess, type RunningProduct } from '../support/product';
-import { chromium, skipUnless } from '../support/services';
-import { testFleet, testTag } from '../support/ingest';
+import { VERDICT_LABEL } from '@/lib/diagnosis/vocabulary';
+import { startProductProcess, type RunningProduct } from '@/test/support/product';
+import { chromium, skipUnless } from '@/test/support/services';
+import { testFleet, testTag } from '@/test/support/ingest';
 import { launchBrowser, screenshots } from './browser';
 import { prepareProduct, type PreparedProduct } from './prepare';
 

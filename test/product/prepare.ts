@@ -11,8 +11,8 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { promisify } from 'node:util';
-import type { Fleet } from '../../lib/contract/nameplate';
-import { createPostgresDatabase, realDatabaseUrl } from '../support/backend';
+import type { Fleet } from '@/lib/contract/nameplate';
+import { createPostgresDatabase, realDatabaseUrl } from '@/test/support/backend';
 
 const run = promisify(execFile);
 

@@ -1,9 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BrowserContext } from 'playwright-core';
 import { mkdirSync } from 'node:fs';
-import { demoDeviceCredentials, eventually, startProductProcess, type RunningProduct } from '../support/product';
-import { realBrokerUrl, realDatabaseUrl } from '../support/backend';
-import { chromium, launchChromium, skipUnless } from '../support/services';
+import { demoDeviceCredentials, eventually, startProductProcess, type RunningProduct } from '@/test/support/product';
+import { realBrokerUrl, realDatabaseUrl } from '@/test/support/backend';
+import { chromium, launchChromium, skipUnless } from '@/test/support/services';
 import mqtt from 'mqtt';
 
 // `npm start` as a user runs it: the build when needed, then the whole product

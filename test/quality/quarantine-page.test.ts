@@ -5,10 +5,10 @@
  * last 24 h that stop at a cap.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { LOCAL_VIEWER } from '../../lib/auth/viewer';
-import { getQuarantineCountsByUnit, getQuarantinePage, type QuarantineCursor } from '../../lib/quality/queries';
-import { createTestDatabase, type TestDatabase } from '../support/backend';
-import { queryRows, registerFleet, testFleet, testTag } from '../support/ingest';
+import { LOCAL_VIEWER } from '@/lib/auth/viewer';
+import { getQuarantineCountsByUnit, getQuarantinePage, type QuarantineCursor } from '@/lib/quality/queries';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { queryRows, registerFleet, testFleet, testTag } from '@/test/support/ingest';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 2, hydroUnits: 1 });

@@ -3,8 +3,8 @@
  * IEC 61400-12-1 and the ISO 2533 standard atmosphere.
  */
 import { describe, expect, it } from 'vitest';
-import { REFERENCE_AIR_DENSITY_KG_M3, normaliseWindSpeedMs } from '../../lib/energy/air-density';
-import { expectedPowerModel } from '../../lib/energy/expected-power';
+import { REFERENCE_AIR_DENSITY_KG_M3, normaliseWindSpeedMs } from '@/lib/energy/air-density';
+import { expectedPowerModel } from '@/lib/energy/expected-power';
 
 describe('reference air density', () => {
   it('1.225 kg/m³ is the ISO 2533 sea-level density', () => {

@@ -6,9 +6,9 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { DateTime } from 'luxon';
-import { monthBuckets, monthHours, monthStartMs } from '../../lib/energy/calendar-buckets';
-import { energySamplesFrom } from '../../lib/energy/energy-samples';
-import { monthlyEnergy } from '../../lib/energy/monthly-energy';
+import { monthBuckets, monthHours, monthStartMs } from '@/lib/energy/calendar-buckets';
+import { energySamplesFrom } from '@/lib/energy/energy-samples';
+import { monthlyEnergy } from '@/lib/energy/monthly-energy';
 
 const H = 3_600_000;
 

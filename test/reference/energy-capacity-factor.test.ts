@@ -6,9 +6,9 @@
  * energy at rated power for the whole period.
  */
 import { describe, expect, it } from 'vitest';
-import { energySamplesFrom, type EnergyInputSample } from '../../lib/energy/energy-samples';
-import { monthlyEnergy } from '../../lib/energy/monthly-energy';
-import { energyFigures } from '../../lib/energy/energy-figures';
+import { energySamplesFrom, type EnergyInputSample } from '@/lib/energy/energy-samples';
+import { monthlyEnergy } from '@/lib/energy/monthly-energy';
+import { energyFigures } from '@/lib/energy/energy-figures';
 
 const MIN = 60_000;
 const hydro = { kind: 'hydro' as const, ratedKw: 10, designHeadM: 10, efficiency: 0.8 };

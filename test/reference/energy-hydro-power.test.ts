@@ -1,9 +1,9 @@
 /** Expected hydro power against the hydropower equation P = ρ·g·Q·H·η and its handbook worked example. */
 import { describe, expect, it } from 'vitest';
-import { STANDARD_GRAVITY_M_S2, hydroPowerKw } from '../../lib/energy/hydro-power';
-import { expectedPowerModel } from '../../lib/energy/expected-power';
-import { energySamplesFrom } from '../../lib/energy/energy-samples';
-import { monthlyEnergy } from '../../lib/energy/monthly-energy';
+import { STANDARD_GRAVITY_M_S2, hydroPowerKw } from '@/lib/energy/hydro-power';
+import { expectedPowerModel } from '@/lib/energy/expected-power';
+import { energySamplesFrom } from '@/lib/energy/energy-samples';
+import { monthlyEnergy } from '@/lib/energy/monthly-energy';
 
 describe('hydropower equation', () => {
   it('g is the standard acceleration of gravity', () => {

@@ -5,9 +5,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { integrateIntoBuckets } from '../../lib/energy/integrate';
-import { energySamplesFrom } from '../../lib/energy/energy-samples';
-import { monthlyEnergy } from '../../lib/energy/monthly-energy';
+import { integrateIntoBuckets } from '@/lib/energy/integrate';
+import { energySamplesFrom } from '@/lib/energy/energy-samples';
+import { monthlyEnergy } from '@/lib/energy/monthly-energy';
 
 const MIN = 60_000;
 /** One unit of the textbook's x axis is 10 minutes here, so its areas are kW·(10 min) = kWh · 1/6. */

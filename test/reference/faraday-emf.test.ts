@@ -3,8 +3,8 @@
  * examples, and the forward generator model's open-circuit EMF ∝ speed.
  */
 import { describe, expect, it } from 'vitest';
-import { keFromWinding, phaseEmfRms, rotatingCoilPeakEmf } from '../../lib/physics/faraday';
-import { emfLineVolts, generatorTerminals } from '../../lib/physics/generator-model';
+import { keFromWinding, phaseEmfRms, rotatingCoilPeakEmf } from '@/lib/physics/faraday';
+import { emfLineVolts, generatorTerminals } from '@/lib/physics/generator-model';
 
 describe('rotating-coil EMF (Faraday)', () => {
   it('matches the AC generator worked example: 8 turns, 0.0900 m², 0.500 T, 60 Hz -> 136 V peak', () => {

@@ -4,9 +4,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { abs, polar, sub } from '../../lib/physics/complex';
-import { negativeSequenceUnbalancePct } from '../../lib/physics/negative-sequence';
-import { negativeSequencePctOfPhasors } from '../../lib/physics/symmetrical-components';
+import { abs, polar, sub } from '@/lib/physics/complex';
+import { negativeSequenceUnbalancePct } from '@/lib/physics/negative-sequence';
+import { negativeSequencePctOfPhasors } from '@/lib/physics/symmetrical-components';
 
 const deg = (d: number) => (d * Math.PI) / 180;
 

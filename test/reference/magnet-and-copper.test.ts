@@ -3,8 +3,8 @@
  * permanent magnets and the resistance coefficient of copper.
  */
 import { describe, expect, it } from 'vitest';
-import { keAtMagnetC, keTemperatureFactor, remanenceCoeffPctPerC } from '../../lib/physics/magnet-temperature';
-import { copperOhmAt } from '../../lib/physics/winding-resistance';
+import { keAtMagnetC, keTemperatureFactor, remanenceCoeffPctPerC } from '@/lib/physics/magnet-temperature';
+import { copperOhmAt } from '@/lib/physics/winding-resistance';
 
 describe('reversible temperature coefficient of remanence', () => {
   it('uses the typical handbook values', () => {

@@ -1,6 +1,6 @@
 /** Line-voltage unbalance against the NEMA MG 1 definition and its worked example. */
 import { describe, expect, it } from 'vitest';
-import { lineVoltageUnbalancePct } from '../../lib/physics/unbalance';
+import { lineVoltageUnbalancePct } from '@/lib/physics/unbalance';
 
 describe('NEMA MG 1 line-voltage unbalance', () => {
   it('460, 467, 450 V gives 1.96 %', () => {

@@ -1,6 +1,6 @@
 /** Student's t quantiles against the NIST/SEMATECH e-Handbook of Statistical Methods, table 1.3.6.7.2 (upper critical values). */
 import { describe, expect, it } from 'vitest';
-import { studentTQuantile } from '../../lib/physics/student-t';
+import { studentTQuantile } from '@/lib/physics/student-t';
 
 const TABLE: ReadonlyArray<readonly [df: number, p95: number, p975: number, p995: number]> = [
   [1, 6.314, 12.706, 63.657],

@@ -4,7 +4,7 @@
  * Handbook for Electrical Engineers; from memory, arithmetic checked).
  */
 import { describe, expect, it } from 'vitest';
-import { electricalHz, rpmFromHz } from '../../lib/physics/synchronous-speed';
+import { electricalHz, rpmFromHz } from '@/lib/physics/synchronous-speed';
 
 const TABLE: ReadonlyArray<readonly [poles: number, rpm60: number, rpm50: number]> = [
   [2, 3600, 3000],

@@ -7,13 +7,13 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
-import { rowsOf } from '../../db/client';
-import { LOCAL_VIEWER, type Viewer } from '../../lib/auth/viewer';
-import { fleetSchema } from '../../lib/contract/nameplate';
-import { importFleetFile, parseFleetText } from '../../lib/setup/fleet-import';
-import { getFleetExport, getSetupSiteById, getSetupSites, getSetupUnitById, insertSite, insertUnit, updateUnit } from '../../lib/setup/queries';
-import { createTestDatabase, type TestDatabase } from '../support/backend';
-import { testFleet, testTag } from '../support/ingest';
+import { rowsOf } from '@/db/client';
+import { LOCAL_VIEWER, type Viewer } from '@/lib/auth/viewer';
+import { fleetSchema } from '@/lib/contract/nameplate';
+import { importFleetFile, parseFleetText } from '@/lib/setup/fleet-import';
+import { getFleetExport, getSetupSiteById, getSetupSites, getSetupUnitById, insertSite, insertUnit, updateUnit } from '@/lib/setup/queries';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { testFleet, testTag } from '@/test/support/ingest';
 
 const tag = testTag();
 const fleet = testFleet(tag, { windUnits: 2, hydroUnits: 1 });

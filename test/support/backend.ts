@@ -7,7 +7,7 @@
  */
 import { randomBytes } from 'node:crypto';
 import postgres from 'postgres';
-import { openDatabase, type DatabaseHandle } from '../../db/client';
+import { openDatabase, type DatabaseHandle } from '@/db/client';
 
 /** The PostgreSQL server named by DATABASE_URL, or undefined on embedded defaults. */
 export const realDatabaseUrl: string | undefined = process.env.DATABASE_URL || undefined;

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import type { TestProject } from 'vitest/node';
 import { backendDescription } from './backend';
 import type { SkipRecord } from './services';
-import { ensureBuild } from '../../bin/ensure-build.mjs';
+import { ensureBuild } from '@/bin/ensure-build.mjs';
 
 /** The end-of-run summary of tests skipped (or, under MILLRACE_REQUIRE_SERVICES=1, failed) for a missing service. */
 export function skipSummary(records: readonly SkipRecord[]): string {
@@ -41,7 +41,9 @@ export default function setup(project: TestProject) {
   const log = join(dir, 'skips.jsonl');
   writeFileSync(log, '');
   project.provide('millraceSkipLog', log);
-  ensureBuild({ log: (line: string) => process.stdout.write(line) });
+  // MILLRACE_SKIP_BUILD=1: a run of unit tests only (no product test), while sources are being edited.
+  if (process.env.MILLRACE_SKIP_BUILD === '1') process.stdout.write('millrace tests: MILLRACE_SKIP_BUILD=1, the web app is not built (product tests would use a stale build)\n');
+  else ensureBuild({ log: (line: string) => process.stdout.write(line) });
   return () => {
     const seen = new Set<string>();
     const records: SkipRecord[] = [];

@@ -3,7 +3,7 @@
  * test that needs one which is not there.
  *
  *   import { describe, it } from 'vitest';
- *   import { chromium, skipUnless } from '../support/services';
+ *   import { chromium, skipUnless } from '@/test/support/services';
  *
  *   // Skipped (with its reason in the run's summary) when Chromium is absent;
  *   // with MILLRACE_REQUIRE_SERVICES=1 (CI) a failing test takes its place.

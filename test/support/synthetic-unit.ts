@@ -5,9 +5,9 @@
  * speed, temperatures, measurement noise, and optional faults. Seeded, so
  * every test sees the same numbers on every run.
  */
-import { nameplateSchema, type Nameplate } from '../../lib/contract/nameplate';
-import type { TelemetrySample } from '../../lib/contract/telemetry';
-import { generatorTerminals } from '../../lib/physics/generator-model';
+import { nameplateSchema, type Nameplate } from '@/lib/contract/nameplate';
+import type { TelemetrySample } from '@/lib/contract/telemetry';
+import { generatorTerminals } from '@/lib/physics/generator-model';
 
 /** An invented 10 kW wind unit: 24 poles, 60 Hz at a rated 300 rpm, NdFeB magnets. */
 export const TEST_NAMEPLATE: Nameplate = nameplateSchema.parse({

@@ -1,7 +1,7 @@
 import type { Metadata } from 'next';
-import { safeNextPath } from '../../../lib/auth/access';
-import { currentViewer } from '../../../lib/auth/viewer';
-import styles from '../account.module.css';
+import { safeNextPath } from '@/lib/auth/access';
+import { currentViewer } from '@/lib/auth/viewer';
+import styles from '@/app/account/account.module.css';
 import { PasswordChangeForm } from './password-form';
 
 export const dynamic = 'force-dynamic';

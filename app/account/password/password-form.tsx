@@ -1,8 +1,8 @@
 'use client';
 import { useActionState } from 'react';
-import { initialFormResult } from '../../admin/form-result';
-import styles from '../account.module.css';
-import { changePasswordAction } from '../actions';
+import { initialFormResult } from '@/app/admin/form-result';
+import styles from '@/app/account/account.module.css';
+import { changePasswordAction } from '@/app/account/actions';
 
 function Problem({ message, id }: { message?: string; id: string }) {
   return message ? (

@@ -4,8 +4,8 @@
  * (or a problem beside its field), and a token or link made here once.
  */
 import { useActionState, type ReactNode } from 'react';
-import styles from '../../account/account.module.css';
-import { initialFormResult, type FormResult } from '../form-result';
+import styles from '@/app/account/account.module.css';
+import { initialFormResult, type FormResult } from '@/app/admin/form-result';
 
 type Action = (previous: FormResult, data: FormData) => Promise<FormResult>;
 

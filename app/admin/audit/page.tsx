@@ -1,11 +1,11 @@
 import type { Metadata } from 'next';
 import { forbidden } from 'next/navigation';
 import { z } from 'zod';
-import { getDatabase } from '../../../db/client';
-import { AUDIT_ACTIONS, getAuditPage } from '../../../lib/auth/audit';
-import { getPeople } from '../../../lib/auth/people';
-import { canAdminPeople, currentViewer } from '../../../lib/auth/viewer';
-import styles from '../../account/account.module.css';
+import { getDatabase } from '@/db/client';
+import { AUDIT_ACTIONS, getAuditPage } from '@/lib/auth/audit';
+import { getPeople } from '@/lib/auth/people';
+import { canAdminPeople, currentViewer } from '@/lib/auth/viewer';
+import styles from '@/app/account/account.module.css';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Audit log' };

@@ -1,12 +1,12 @@
 import type { Metadata } from 'next';
 import { forbidden } from 'next/navigation';
-import { getDatabase } from '../../../db/client';
-import { getPeople } from '../../../lib/auth/people';
-import { canAdminPeople, currentViewer } from '../../../lib/auth/viewer';
-import { getSetupSites } from '../../../lib/setup/queries';
-import styles from '../../account/account.module.css';
-import { addPersonAction } from '../actions';
-import { AddPersonForm } from '../_components/forms';
+import { getDatabase } from '@/db/client';
+import { getPeople } from '@/lib/auth/people';
+import { canAdminPeople, currentViewer } from '@/lib/auth/viewer';
+import { getSetupSites } from '@/lib/setup/queries';
+import styles from '@/app/account/account.module.css';
+import { addPersonAction } from '@/app/admin/actions';
+import { AddPersonForm } from '@/app/admin/_components/forms';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'People' };

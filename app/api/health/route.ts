@@ -1,4 +1,4 @@
-import { getHealthReport } from '../../../lib/server/health';
+import { getHealthReport } from '@/lib/server/health';
 
 export const dynamic = 'force-dynamic';
 

@@ -1,11 +1,11 @@
-import { getDatabase } from '../../../db/client';
-import { currentViewer } from '../../../lib/auth/viewer';
-import { isAppError } from '../../../lib/errors/app-error';
-import { getConfig } from '../../../lib/config/env';
-import { getLiveHub } from '../../../lib/live/hub';
-import { ensureLiveListener } from '../../../lib/live/listener';
-import { getLiveScope } from '../../../lib/live/queries';
-import { createLiveStream, SSE_HEADERS } from '../../../lib/live/sse';
+import { getDatabase } from '@/db/client';
+import { currentViewer } from '@/lib/auth/viewer';
+import { isAppError } from '@/lib/errors/app-error';
+import { getConfig } from '@/lib/config/env';
+import { getLiveHub } from '@/lib/live/hub';
+import { ensureLiveListener } from '@/lib/live/listener';
+import { getLiveScope } from '@/lib/live/queries';
+import { createLiveStream, SSE_HEADERS } from '@/lib/live/sse';
 import { liveQuerySchema } from './schema';
 
 export const dynamic = 'force-dynamic';

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { SLUG } from '../../../lib/contract/nameplate';
+import { SLUG } from '@/lib/contract/nameplate';
 
 const slug = (name: string) =>
   z

@@ -1,4 +1,4 @@
-import styles from '../quality.module.css';
+import styles from '@/app/data-quality/quality.module.css';
 
 /** Characters of a kept payload shown on the page (the database keeps up to 4,096). */
 export const SHOWN_PAYLOAD_CHARS = 2000;

@@ -1,8 +1,8 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { loadDisplayScreen } from '../../../lib/fleet/display';
-import { StateBadge, StateCounts } from '../../_components/state-badge';
-import { ago, formatEnergyKwh, formatPowerKw } from '../../_components/format';
+import { loadDisplayScreen } from '@/lib/fleet/display';
+import { StateBadge, StateCounts } from '@/app/_components/state-badge';
+import { ago, formatEnergyKwh, formatPowerKw } from '@/app/_components/format';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Display', referrer: 'no-referrer', robots: { index: false, follow: false } };

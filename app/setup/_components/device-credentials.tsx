@@ -6,7 +6,7 @@
  * shown once, with a copy button: only its hash is kept.
  */
 import { useActionState, useState } from 'react';
-import type { DeviceCredentialsState } from '../device-actions';
+import type { DeviceCredentialsState } from '@/app/setup/device-actions';
 import formStyles from './form.module.css';
 import styles from './device-credentials.module.css';
 

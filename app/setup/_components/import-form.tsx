@@ -5,8 +5,8 @@
  * The report lists each entry: added, updated, or invalid with its problems.
  */
 import { useActionState, useEffect, useRef, useState } from 'react';
-import type { ImportState } from '../form-state';
-import setup from '../setup.module.css';
+import type { ImportState } from '@/app/setup/form-state';
+import setup from '@/app/setup/setup.module.css';
 import styles from './form.module.css';
 
 type Action = (state: ImportState, data: FormData) => Promise<ImportState>;

@@ -1,7 +1,7 @@
 'use client';
 /** The site form: id (a new site), name and IANA time zone, checked by the contract's site schema. */
 import { useActionState, useEffect, useRef } from 'react';
-import type { FormState } from '../form-state';
+import type { FormState } from '@/app/setup/form-state';
 import { ErrorSummary, Field } from './field';
 import styles from './form.module.css';
 

@@ -7,8 +7,8 @@
  * and what was typed stays.
  */
 import { useActionState, useEffect, useRef, useState } from 'react';
-import { MAGNET_MATERIALS } from '../../../lib/contract/nameplate';
-import type { FormState } from '../form-state';
+import { MAGNET_MATERIALS } from '@/lib/contract/nameplate';
+import type { FormState } from '@/app/setup/form-state';
 import { ErrorSummary, Field, fieldId, SelectField } from './field';
 import styles from './form.module.css';
 

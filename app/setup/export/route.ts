@@ -1,6 +1,6 @@
-import { getDatabase } from '../../../db/client';
-import { currentViewer } from '../../../lib/auth/viewer';
-import { getFleetExport } from '../../../lib/setup/queries';
+import { getDatabase } from '@/db/client';
+import { currentViewer } from '@/lib/auth/viewer';
+import { getFleetExport } from '@/lib/setup/queries';
 
 export const dynamic = 'force-dynamic';
 

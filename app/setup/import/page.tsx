@@ -1,8 +1,8 @@
 import type { Metadata } from 'next';
-import { MAX_FLEET_FILE_BYTES } from '../../../lib/setup/fleet-import';
-import { importFleetAction } from '../actions';
-import { SetupCrumbs } from '../_components/breadcrumbs';
-import { ImportForm } from '../_components/import-form';
+import { MAX_FLEET_FILE_BYTES } from '@/lib/setup/fleet-import';
+import { importFleetAction } from '@/app/setup/actions';
+import { SetupCrumbs } from '@/app/setup/_components/breadcrumbs';
+import { ImportForm } from '@/app/setup/_components/import-form';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Import FLEET.json' };

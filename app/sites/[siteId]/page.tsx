@@ -1,15 +1,15 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { loadSiteScreen } from '../../../lib/fleet/overview';
-import { SITE_SORTS, SITE_SORT_LABEL, type SiteSort, type SiteTableParams } from '../../../lib/fleet/site-table';
-import { UNIT_STATES, UNIT_STATE_NAME } from '../../../lib/fleet/unit-state';
-import { resolveLimits } from '../../../lib/diagnosis/limits';
-import { StateBadge } from '../../_components/state-badge';
-import { LocalTime } from '../../_components/local-time';
-import { KeMark } from '../../_components/ke-mark';
-import { Sparkline } from '../../_components/sparkline';
-import { ago, formatNumber, formatPowerKw } from '../../_components/format';
-import { LiveUpdates } from '../../_components/live-updates';
+import { loadSiteScreen } from '@/lib/fleet/overview';
+import { SITE_SORTS, SITE_SORT_LABEL, type SiteSort, type SiteTableParams } from '@/lib/fleet/site-table';
+import { UNIT_STATES, UNIT_STATE_NAME } from '@/lib/fleet/unit-state';
+import { resolveLimits } from '@/lib/diagnosis/limits';
+import { StateBadge } from '@/app/_components/state-badge';
+import { LocalTime } from '@/app/_components/local-time';
+import { KeMark } from '@/app/_components/ke-mark';
+import { Sparkline } from '@/app/_components/sparkline';
+import { ago, formatNumber, formatPowerKw } from '@/app/_components/format';
+import { LiveUpdates } from '@/app/_components/live-updates';
 
 export const dynamic = 'force-dynamic';
 

@@ -1,12 +1,12 @@
 import type { Metadata } from 'next';
 import { forbidden, notFound } from 'next/navigation';
-import { getDatabase } from '../../../../db/client';
-import { getApiTokensOfPerson } from '../../../../lib/auth/api-tokens';
-import { getDisplayLinksByCreator } from '../../../../lib/auth/display-links';
-import { getPersonById } from '../../../../lib/auth/people';
-import { canAdminPeople, currentViewer } from '../../../../lib/auth/viewer';
-import { getSetupSites } from '../../../../lib/setup/queries';
-import styles from '../../../account/account.module.css';
+import { getDatabase } from '@/db/client';
+import { getApiTokensOfPerson } from '@/lib/auth/api-tokens';
+import { getDisplayLinksByCreator } from '@/lib/auth/display-links';
+import { getPersonById } from '@/lib/auth/people';
+import { canAdminPeople, currentViewer } from '@/lib/auth/viewer';
+import { getSetupSites } from '@/lib/setup/queries';
+import styles from '@/app/account/account.module.css';
 import {
   createDisplayLinkAction,
   createTokenAction,
@@ -15,8 +15,8 @@ import {
   revokeTokenAction,
   setDisabledAction,
   updateAccessAction,
-} from '../../actions';
-import { AccessForm, ButtonForm, NameForm, PasswordResetForm } from '../../_components/forms';
+} from '@/app/admin/actions';
+import { AccessForm, ButtonForm, NameForm, PasswordResetForm } from '@/app/admin/_components/forms';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Person' };

@@ -1,4 +1,4 @@
-import { answerSites } from '../../../../lib/api/read';
+import { answerSites } from '@/lib/api/read';
 
 export const dynamic = 'force-dynamic';
 

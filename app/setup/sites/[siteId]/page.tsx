@@ -1,15 +1,15 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { getDatabase } from '../../../../db/client';
-import { canEditSetup, currentViewer } from '../../../../lib/auth/viewer';
-import { SLUG } from '../../../../lib/contract/nameplate';
-import { getSetupSiteById, getSetupSites } from '../../../../lib/setup/queries';
-import { saveSiteAction } from '../../actions';
-import { SetupCrumbs } from '../../_components/breadcrumbs';
-import { SavedNote } from '../../_components/saved-note';
-import { SiteForm } from '../../_components/site-form';
-import { initialFormState } from '../../form-state';
-import { timeZoneNames } from '../../time-zones';
+import { getDatabase } from '@/db/client';
+import { canEditSetup, currentViewer } from '@/lib/auth/viewer';
+import { SLUG } from '@/lib/contract/nameplate';
+import { getSetupSiteById, getSetupSites } from '@/lib/setup/queries';
+import { saveSiteAction } from '@/app/setup/actions';
+import { SetupCrumbs } from '@/app/setup/_components/breadcrumbs';
+import { SavedNote } from '@/app/setup/_components/saved-note';
+import { SiteForm } from '@/app/setup/_components/site-form';
+import { initialFormState } from '@/app/setup/form-state';
+import { timeZoneNames } from '@/app/setup/time-zones';
 
 export const dynamic = 'force-dynamic';
 

@@ -1,9 +1,9 @@
 import type { Metadata } from 'next';
-import { saveSiteAction } from '../../actions';
-import { SetupCrumbs } from '../../_components/breadcrumbs';
-import { SiteForm } from '../../_components/site-form';
-import { initialFormState } from '../../form-state';
-import { timeZoneNames } from '../../time-zones';
+import { saveSiteAction } from '@/app/setup/actions';
+import { SetupCrumbs } from '@/app/setup/_components/breadcrumbs';
+import { SiteForm } from '@/app/setup/_components/site-form';
+import { initialFormState } from '@/app/setup/form-state';
+import { timeZoneNames } from '@/app/setup/time-zones';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Add a site' };

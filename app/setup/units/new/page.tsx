@@ -1,11 +1,11 @@
 import type { Metadata } from 'next';
-import { getDatabase } from '../../../../db/client';
-import { currentViewer } from '../../../../lib/auth/viewer';
-import { getSetupSites } from '../../../../lib/setup/queries';
-import { saveUnitAction } from '../../actions';
-import { SetupCrumbs } from '../../_components/breadcrumbs';
-import { UnitForm } from '../../_components/unit-form';
-import { initialFormState } from '../../form-state';
+import { getDatabase } from '@/db/client';
+import { currentViewer } from '@/lib/auth/viewer';
+import { getSetupSites } from '@/lib/setup/queries';
+import { saveUnitAction } from '@/app/setup/actions';
+import { SetupCrumbs } from '@/app/setup/_components/breadcrumbs';
+import { UnitForm } from '@/app/setup/_components/unit-form';
+import { initialFormState } from '@/app/setup/form-state';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Add a unit' };

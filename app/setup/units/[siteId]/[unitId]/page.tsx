@@ -1,18 +1,18 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { getDatabase } from '../../../../../db/client';
-import { canEditSetup, currentViewer } from '../../../../../lib/auth/viewer';
-import { SLUG } from '../../../../../lib/contract/nameplate';
-import { formOfNameplate } from '../../../../../lib/setup/forms';
-import { getSetupSiteById, getSetupUnitById } from '../../../../../lib/setup/queries';
-import { saveUnitAction } from '../../../actions';
-import { SetupCrumbs } from '../../../_components/breadcrumbs';
-import { SavedNote } from '../../../_components/saved-note';
-import { UnitForm } from '../../../_components/unit-form';
-import { DeviceCredentials } from '../../../_components/device-credentials';
-import { deviceCredentialsAction } from '../../../device-actions';
-import { getDeviceCredentials } from '../../../../../lib/devices/queries';
-import { initialFormState } from '../../../form-state';
+import { getDatabase } from '@/db/client';
+import { canEditSetup, currentViewer } from '@/lib/auth/viewer';
+import { SLUG } from '@/lib/contract/nameplate';
+import { formOfNameplate } from '@/lib/setup/forms';
+import { getSetupSiteById, getSetupUnitById } from '@/lib/setup/queries';
+import { saveUnitAction } from '@/app/setup/actions';
+import { SetupCrumbs } from '@/app/setup/_components/breadcrumbs';
+import { SavedNote } from '@/app/setup/_components/saved-note';
+import { UnitForm } from '@/app/setup/_components/unit-form';
+import { DeviceCredentials } from '@/app/setup/_components/device-credentials';
+import { deviceCredentialsAction } from '@/app/setup/device-actions';
+import { getDeviceCredentials } from '@/lib/devices/queries';
+import { initialFormState } from '@/app/setup/form-state';
 
 export const dynamic = 'force-dynamic';
 

@@ -1,17 +1,17 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { loadUnitScreen } from '../../../../../lib/units/screen';
-import { SERIES_FIELDS, SERIES_RANGES, SERIES_RANGE_KEYS, type SeriesField } from '../../../../../lib/units/queries';
-import type { SeriesBucket } from '../../../../../lib/charts/downsample';
-import { SAFETY_CAUTION, splitFindingMessage } from '../../../../../lib/diagnosis/findings';
-import { findingTitle, VERDICT_BASIS } from '../../../../../lib/diagnosis/vocabulary';
-import type { UnitState } from '../../../../../lib/fleet/unit-state';
-import { StateBadge, StateIcon } from '../../../../_components/state-badge';
-import { LocalTime } from '../../../../_components/local-time';
-import { EmfScatter, KeTrendChart, SeriesChart } from '../../../../_components/charts';
-import { ago, formatNumber, formatRatio } from '../../../../_components/format';
-import { LiveUpdates } from '../../../../_components/live-updates';
-import { seriesStyle } from '../../../../_components/chart-style';
+import { loadUnitScreen } from '@/lib/units/screen';
+import { SERIES_FIELDS, SERIES_RANGES, SERIES_RANGE_KEYS, type SeriesField } from '@/lib/units/queries';
+import type { SeriesBucket } from '@/lib/charts/downsample';
+import { SAFETY_CAUTION, splitFindingMessage } from '@/lib/diagnosis/findings';
+import { findingTitle, VERDICT_BASIS } from '@/lib/diagnosis/vocabulary';
+import type { UnitState } from '@/lib/fleet/unit-state';
+import { StateBadge, StateIcon } from '@/app/_components/state-badge';
+import { LocalTime } from '@/app/_components/local-time';
+import { EmfScatter, KeTrendChart, SeriesChart } from '@/app/_components/charts';
+import { ago, formatNumber, formatRatio } from '@/app/_components/format';
+import { LiveUpdates } from '@/app/_components/live-updates';
+import { seriesStyle } from '@/app/_components/chart-style';
 
 export const dynamic = 'force-dynamic';
 

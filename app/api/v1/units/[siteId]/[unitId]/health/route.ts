@@ -1,4 +1,4 @@
-import { answerUnitHealth } from '../../../../../../../lib/api/read';
+import { answerUnitHealth } from '@/lib/api/read';
 
 export const dynamic = 'force-dynamic';
 
