@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatEnergyKwh, formatNumber, formatPowerKw, formatSiteTime, formatUtc, MISSING } from '@/app/_components/format';
+import { formatEnergyKwh, formatNumber, formatPowerKw, formatSiteTime, formatUtc, MISSING } from './format';
 
 describe('screen formatting', () => {
   it('shows a number with its unit, and an en dash when missing', () => {
