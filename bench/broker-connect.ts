@@ -24,7 +24,7 @@ import { createBrokerAuthoriser, newLocalIngesterAccount } from '@/lib/devices/b
 import { writeBrokerAuthFiles } from '@/lib/devices/broker-files';
 import { hashPassword, newPassword, verifyPassword } from '@/lib/devices/credentials';
 import { issueDeviceCredentials, listBrokerAccounts } from '@/lib/devices/queries';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import { registerFleet, testFleet } from '@/test/support/ingest';
 import { startMosquitto } from '@/test/support/mosquitto';
 import { mosquitto } from '@/test/support/services';

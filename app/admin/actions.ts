@@ -14,7 +14,7 @@ import { actorOfViewer } from '@/lib/auth/audit';
 import { createDisplayLink, revokeDisplayLink } from '@/lib/auth/display-links';
 import { addPerson, getPersonById, setPassword, setPersonDisabled, updatePersonAccess } from '@/lib/auth/people';
 import { clientIp } from '@/lib/auth/request';
-import { roleSchema } from '@/lib/auth/roles';
+import { roleSchema } from '@/lib/contract/roles';
 import { canAdminPeople, currentViewer, type Viewer } from '@/lib/auth/viewer';
 import { SLUG } from '@/lib/contract/nameplate';
 import type { FormResult } from './form-result';

@@ -5,7 +5,7 @@
  */
 import { sql } from 'drizzle-orm';
 import { bigint, boolean, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex } from 'drizzle-orm/pg-core';
-import { ROLES } from '@/lib/auth/roles';
+import { ROLES } from '@/lib/contract/roles';
 import { sites } from './fleet';
 
 export const roleEnum = pgEnum('person_role', ROLES);

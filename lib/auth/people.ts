@@ -10,7 +10,7 @@ import { people, personSites, sessions, sites, type PersonRow } from '@/db/schem
 import { AppError } from '@/lib/errors/app-error';
 import { writeAudit, type Actor } from './audit';
 import { hashPassword, passwordProblem } from './passwords';
-import { SITE_BOUND_ROLES, roleSchema, type Role } from './roles';
+import { SITE_BOUND_ROLES, roleSchema, type Role } from '@/lib/contract/roles';
 import type { Viewer } from './viewer';
 
 /** An e-mail address as people type it: trimmed, at most 254 characters, one @ with something either side. */

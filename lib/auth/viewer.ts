@@ -7,9 +7,7 @@
  * admin everything, people included; operator all sites, edits setup,
  * acknowledges; crew their sites, acknowledges; owner their sites, read only.
  */
-import type { Role } from './roles';
-
-export { ROLES, roleSchema, type Role } from './roles';
+import type { Role } from '@/lib/contract/roles';
 
 /** Who is asking, and which sites they may see. */
 export interface Viewer {

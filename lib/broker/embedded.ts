@@ -16,7 +16,7 @@ import { createCredentialCache, mayPublish, maySubscribe, type BrokerAuthoriser,
 import { AppError } from '@/lib/errors/app-error';
 import { createEmbeddedPersistence } from './embedded-persistence';
 import type { Logger } from '@/lib/log/logger';
-import { isPortFree } from '@/lib/server/ports';
+import { isPortFree } from '@/lib/net/ports';
 
 export interface EmbeddedBroker {
   url: string;

@@ -7,7 +7,7 @@ import { resolve, dirname } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import next from 'next';
 import { AppError } from '@/lib/errors/app-error';
-import { isPortFree } from './ports';
+import { isPortFree } from '@/lib/net/ports';
 
 export const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 

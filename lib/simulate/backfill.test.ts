@@ -4,7 +4,7 @@ import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded'
 import { fleetSchema } from '@/lib/contract/nameplate';
 import { parseTelemetrySample, parseTimestampMs } from '@/lib/contract/telemetry';
 import { createLogger } from '@/lib/log/logger';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import { backfill, payloadsOf, MAX_BACKFILL_PAYLOAD_BYTES } from './backfill';
 import { demoFleet } from './demo-fleet';
 import type { PublishedSample } from './machine';

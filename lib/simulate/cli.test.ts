@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import mqtt, { type MqttClient } from 'mqtt';
 import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded';
 import { createLogger } from '@/lib/log/logger';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import { fleetSubset, parseSimulateArgs, runSimulate, USAGE } from './cli';
 import { demoFleet } from './demo-fleet';
 

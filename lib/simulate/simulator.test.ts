@@ -4,7 +4,7 @@ import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded'
 import { fleetSchema } from '@/lib/contract/nameplate';
 import { parseTelemetrySample } from '@/lib/contract/telemetry';
 import { createLogger } from '@/lib/log/logger';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import { demoFleet } from './demo-fleet';
 import { startSimulator } from './simulator';
 

@@ -9,7 +9,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs';
 import { join, relative } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { addPerson, viewerOfPerson } from '@/lib/auth/people';
-import type { Role } from '@/lib/auth/roles';
+import type { Role } from '@/lib/contract/roles';
 import type { Viewer } from '@/lib/auth/viewer';
 import { upsertFleet } from '@/lib/fleet/queries';
 import { formOfNameplate } from '@/lib/setup/forms';

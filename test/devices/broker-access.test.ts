@@ -22,7 +22,7 @@ import { startIngester, type Ingester } from '@/lib/ingest/ingester';
 import { createLiveHub } from '@/lib/live/hub';
 import { startLiveListener, type LiveListener } from '@/lib/live/listener';
 import { createLivePublisher } from '@/lib/live/publisher';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { queryRows, registerFleet, testFleet, testLogger, testTag, waitFor } from '@/test/support/ingest';
 import { startMosquitto, type TestMosquitto } from '@/test/support/mosquitto';

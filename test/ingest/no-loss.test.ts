@@ -13,7 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDatabase, type DatabaseHandle } from '@/db/client';
 import { startEmbeddedBroker } from '@/lib/broker/embedded';
 import { startIngester } from '@/lib/ingest/ingester';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import { createPostgresDatabase } from '@/test/support/backend';
 import {
   adminDatabaseUrl,

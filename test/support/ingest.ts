@@ -12,7 +12,7 @@ import { startEmbeddedBroker } from '@/lib/broker/embedded';
 import { fleetSchema, type Fleet } from '@/lib/contract/nameplate';
 import { createLogger, type Logger } from '@/lib/log/logger';
 import { upsertFleet } from '@/lib/fleet/queries';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import type { DatabaseHandle } from '@/db/client';
 import type { TelemetrySample } from '@/lib/contract/telemetry';
 import { NO_ENTRIES, NO_FIELDS } from '@/lib/ingest/decode';

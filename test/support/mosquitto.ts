@@ -18,7 +18,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parse } from 'yaml';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 
 import { mosquitto } from './services';
 

@@ -6,7 +6,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { freePort } from '@/lib/server/ports';
+import { freePort } from '@/lib/net/ports';
 import type { Page } from 'playwright-core';
 import { addTestAccount, signInPage, TEST_ADMIN, type TestAccount } from './accounts';
 import { createPostgresDatabase, realBrokerUrl, realDatabaseUrl } from './backend';

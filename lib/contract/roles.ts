@@ -1,6 +1,8 @@
 /**
  * The roles a person may have, shared by the database enum (db/schema/people.ts)
- * and the zod schemas. Pure: no imports from next or the database.
+ * and the zod schemas. Pure: no imports from next or the database. It sits
+ * beside the contract, below both db/ and lib/auth, so that the schema need
+ * not import lib/auth (which imports db/).
  */
 import { z } from 'zod';
 

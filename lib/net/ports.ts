@@ -1,6 +1,8 @@
 /**
  * Checks that a TCP port is free before a server binds it, so that start-up
  * stops with one clear line instead of picking another port silently.
+ * Neutral ground: the web server, the embedded broker and the tests all
+ * use it, so none of them imports another for it.
  */
 import { createServer } from 'node:net';
 
