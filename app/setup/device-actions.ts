@@ -1,64 +1,51 @@
 'use server';
 /**
- * The setup screen's device-credential write: issue a unit's MQTT account or
- * rotate its password. POST only (a server action); the new password is in
- * this one answer and nowhere else (only its hash is stored). Rotation is
- * announced on the live feed, so the embedded broker cuts the device off.
+ * The setup screen's device-credential write: issue a unit's MQTT account,
+ * rotate its password, or revoke it. POST only (a server action, made with
+ * action()); the new password is in this one answer and nowhere else (only
+ * its hash is stored). A change is announced on the live feed, so the
+ * embedded broker cuts the device off.
  */
 import { revalidatePath } from 'next/cache';
-import { getDatabase } from '@/db/client';
-import { currentViewer } from '@/lib/auth/viewer';
+import { z } from 'zod';
+import { canEditSetup } from '@/lib/auth/viewer';
 import { SLUG } from '@/lib/contract/nameplate';
-import { issueDeviceCredentials, revokeDeviceCredentials } from '@/lib/devices/queries';
-import { createLivePublisher } from '@/lib/live/publisher';
+import { changeDeviceCredentials } from '@/lib/devices/screen';
+import { action, type ActionContext, type ActionState } from '@/lib/request/action';
 
-export interface DeviceCredentialsState {
-  submitted: number;
+export interface DeviceCredentialsState extends ActionState {
   issued?: { username: string; password: string; rotated: boolean };
   revoked?: boolean;
-  problem?: string;
 }
 
-export async function issueDeviceCredentialsAction(
-  ids: { siteId: string; unitId: string },
-  previous: DeviceCredentialsState,
+type UnitIds = { siteId: string; unitId: string };
+
+const OPTIONS = {
+  allow: canEditSetup,
+  refused: 'You may not change device credentials: ask an administrator or operator.',
+  bound: z.tuple([z.object({ siteId: z.string().regex(SLUG), unitId: z.string().regex(SLUG) })]),
+  badBound: 'That unit does not exist.',
+};
+
+async function change(
+  { handle, viewer, bound: [ids], submitted }: Pick<ActionContext<unknown, [UnitIds]>, 'handle' | 'viewer' | 'bound' | 'submitted'>,
+  intent: 'issue' | 'revoke',
 ): Promise<DeviceCredentialsState> {
-  const submitted = previous.submitted + 1;
-  // Bound arguments come from our own page, but a posted action can carry anything.
-  if (!SLUG.test(ids.siteId) || !SLUG.test(ids.unitId)) return { submitted, problem: 'That unit does not exist.' };
-  const handle = await getDatabase();
-  const viewer = await currentViewer();
-  const live = createLivePublisher({ handle });
-  const result = await issueDeviceCredentials({ db: handle.db, viewer, siteId: ids.siteId, unitId: ids.unitId, live });
-  await live.flush();
-  if (!result.ok) {
-    return { submitted, problem: result.reason === 'not-found' ? 'That unit does not exist (or is not yours to see).' : result.message };
-  }
+  const result = await changeDeviceCredentials({ handle, viewer, ...ids, intent });
+  if (!result.ok) return { submitted, error: result.problem };
   revalidatePath(`/setup/units/${ids.siteId}/${ids.unitId}`);
-  return { submitted, issued: { username: result.username, password: result.password, rotated: result.rotated } };
+  return result.issued ? { submitted, issued: result.issued } : { submitted, revoked: true };
 }
+
+/** Issues the unit's account, or rotates its password. */
+export const issueDeviceCredentialsAction = action(OPTIONS, (context): Promise<DeviceCredentialsState> => change(context, 'issue'));
 
 /**
  * The section's one form action: `intent` "revoke" revokes the unit's account
  * (a lost or stolen device: it can no longer connect, and a connected device
  * is cut off); anything else issues or rotates.
  */
-export async function deviceCredentialsAction(
-  ids: { siteId: string; unitId: string },
-  previous: DeviceCredentialsState,
-  data: FormData,
-): Promise<DeviceCredentialsState> {
-  if (data.get('intent') !== 'revoke') return issueDeviceCredentialsAction(ids, previous);
-  const submitted = previous.submitted + 1;
-  if (!SLUG.test(ids.siteId) || !SLUG.test(ids.unitId)) return { submitted, problem: 'That unit does not exist.' };
-  const handle = await getDatabase();
-  const viewer = await currentViewer();
-  const live = createLivePublisher({ handle });
-  const result = await revokeDeviceCredentials({ db: handle.db, viewer, siteId: ids.siteId, unitId: ids.unitId, live });
-  await live.flush();
-  if (!result.ok) {
-    return { submitted, problem: result.reason === 'not-found' ? 'That unit does not exist (or is not yours to see).' : result.message };
-  }
-  revalidatePath(`/setup/units/${ids.siteId}/${ids.unitId}`);
-  return { submitted, revoked: true };
-}
+export const deviceCredentialsAction = action(
+  { ...OPTIONS, input: z.object({ intent: z.string().optional() }) },
+  (context): Promise<DeviceCredentialsState> => change(context, context.input.intent === 'revoke' ? 'revoke' : 'issue'),
+);

@@ -1,18 +1,12 @@
 import type { Metadata } from 'next';
-import { getDatabase } from '@/db/client';
-import { currentViewer, canEditSetup } from '@/lib/auth/viewer';
-import { getSetupSites } from '@/lib/setup/queries';
+import { loadSetupScreen } from '@/lib/setup/screen';
 import styles from './setup.module.css';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Setup' };
 
 export default async function SetupPage() {
-  const { db } = await getDatabase();
-  const viewer = await currentViewer();
-  const sites = await getSetupSites({ db, viewer });
-  const editable = canEditSetup(viewer);
-  const unitCount = sites.reduce((n, s) => n + s.units.length, 0);
+  const { sites, unitCount, editable } = await loadSetupScreen();
   return (
     <>
       <div className="page-head">

@@ -177,3 +177,43 @@ export async function importFleetFile({ db, viewer, raw, apply }: { db: Db; view
   }
   return report;
 }
+
+/** A FLEET.json sent from the import screen: its text and JSON, or the problem with the upload itself, in words. */
+export type FleetUpload =
+  | { ok: true; intent: 'check' | 'import'; fileName: string; text: string; raw: unknown }
+  | { ok: false; intent: 'check' | 'import'; fileName?: string; problem: string };
+
+/**
+ * Reads the import form: a file chosen (`file`), or the text of a file checked
+ * before and sent back (`fleetText`, `fileName`), so that it can be imported
+ * without choosing it again; `intent` "check" only checks. Files over
+ * MAX_FLEET_FILE_BYTES go to the command line.
+ */
+export async function readFleetUpload(data: FormData): Promise<FleetUpload> {
+  const intent = data.get('intent') === 'check' ? 'check' : 'import';
+  const file = data.get('file');
+  const checked = data.get('fleetText');
+  let text: string;
+  let fileName: string;
+  if (typeof checked === 'string' && checked !== '') {
+    text = checked;
+    fileName = String(data.get('fileName') ?? 'FLEET.json').slice(0, 200);
+  } else if (file instanceof File && file.size > 0) {
+    fileName = file.name;
+    if (file.size > MAX_FLEET_FILE_BYTES) {
+      return {
+        ok: false,
+        intent,
+        fileName,
+        problem: `${fileName} is ${file.size.toLocaleString('en-US')} bytes; the screen takes up to ${MAX_FLEET_FILE_BYTES.toLocaleString('en-US')}. Import larger fleets with npx millrace units import.`,
+      };
+    }
+    text = await file.text();
+  } else {
+    return { ok: false, intent, problem: file instanceof File && file.name ? `${file.name} is empty` : 'Choose a FLEET.json file first.' };
+  }
+  if (Buffer.byteLength(text) > MAX_FLEET_FILE_BYTES) return { ok: false, intent, fileName, problem: `${fileName} is too large for the screen; use npx millrace units import` };
+  const parsed = parseFleetText(text);
+  if (!parsed.ok) return { ok: false, intent, fileName, problem: `${fileName}: ${parsed.problem}` };
+  return { ok: true, intent, fileName, text, raw: parsed.raw };
+}

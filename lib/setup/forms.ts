@@ -33,12 +33,7 @@ export const HYDRO_NUMBER_FIELDS = ['designHeadM', 'designFlowM3s', 'efficiency'
 /** The per-unit diagnosis limits (all optional), as form fields `diagnosis.<name>`. */
 export const DIAGNOSIS_LIMIT_FIELDS = Object.keys(diagnosisLimitsSchema.shape) as Array<keyof typeof diagnosisLimitsSchema.shape>;
 
-/** FormData (or any iterable of pairs) as plain strings; files are left out. */
-export function formValues(data: Iterable<[string, FormDataEntryValue]>): FormValues {
-  const out: FormValues = {};
-  for (const [key, value] of data) if (typeof value === 'string' && !key.startsWith('$ACTION')) out[key] = value;
-  return out;
-}
+export { formValues } from '@/lib/request/form-values';
 
 /**
  * A number as typed: blank is absent, a number is a number, anything else

@@ -102,9 +102,9 @@ export function DeviceCredentials({
           <p>On Mosquitto, export the broker&apos;s files again and reload it (README, production).</p>
         </div>
       ) : null}
-      {state.problem ? (
+      {state.error ? (
         <p className={styles.problem} role="alert">
-          {state.problem}
+          {state.error}
         </p>
       ) : null}
       {state.revoked ? (

@@ -25,7 +25,7 @@ export function ImportForm({ action, maxBytes }: { action: Action; maxBytes: num
   const report = state.report;
   const applied = report?.applied;
   const invalid = report?.entries.filter((e) => e.action === 'invalid') ?? [];
-  const fileError = tooLarge ?? state.fileProblem;
+  const fileError = tooLarge ?? state.fileProblem ?? state.error;
 
   return (
     <>

@@ -1,7 +1,7 @@
 'use client';
 /** The site form: id (a new site), name and IANA time zone, checked by the contract's site schema. */
 import { useActionState, useEffect, useRef } from 'react';
-import type { FormState } from '@/app/setup/form-state';
+import { problemsOf, type FormState } from '@/app/setup/form-state';
 import { ErrorSummary, Field } from './field';
 import styles from './form.module.css';
 
@@ -24,8 +24,8 @@ export function SiteForm({
 }) {
   const [state, formAction, pending] = useActionState(action, initial);
   const formRef = useRef<HTMLFormElement>(null);
-  const v = state.values;
-  const e = state.fieldErrors;
+  const v = state.values ?? {};
+  const e = problemsOf(state);
   useEffect(() => {
     if (state.submitted === 0) return;
     formRef.current?.querySelector<HTMLElement>('[aria-invalid="true"]')?.focus();

@@ -8,7 +8,7 @@
  */
 import { useActionState, useEffect, useRef, useState } from 'react';
 import { MAGNET_MATERIALS } from '@/lib/contract/nameplate';
-import type { FormState } from '@/app/setup/form-state';
+import { problemsOf, type FormState } from '@/app/setup/form-state';
 import { ErrorSummary, Field, fieldId, SelectField } from './field';
 import styles from './form.module.css';
 
@@ -82,10 +82,10 @@ export function UnitForm({
   submitLabel: string;
 }) {
   const [state, formAction, pending] = useActionState(action, initial);
-  const [kind, setKind] = useState(initial.values.kind === 'hydro' ? 'hydro' : 'wind');
+  const [kind, setKind] = useState(initial.values?.kind === 'hydro' ? 'hydro' : 'wind');
   const formRef = useRef<HTMLFormElement>(null);
-  const v = state.values;
-  const e = state.fieldErrors;
+  const v = state.values ?? {};
+  const e = problemsOf(state);
 
   useEffect(() => {
     if (state.submitted === 0) return;

@@ -1,11 +1,8 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { getDatabase } from '@/db/client';
-import { canEditSetup, currentViewer } from '@/lib/auth/viewer';
-import { SLUG } from '@/lib/contract/nameplate';
-import { getSetupSiteById, getSetupSites } from '@/lib/setup/queries';
+import { loadSetupSiteScreen } from '@/lib/setup/screen';
 import { saveSiteAction } from '@/app/setup/actions';
-import { SetupCrumbs } from '@/app/setup/_components/breadcrumbs';
+import { Breadcrumbs } from '@/app/_components/breadcrumbs';
 import { SavedNote } from '@/app/setup/_components/saved-note';
 import { SiteForm } from '@/app/setup/_components/site-form';
 import { initialFormState } from '@/app/setup/form-state';
@@ -20,16 +17,12 @@ export async function generateMetadata({ params }: { params: Promise<{ siteId: s
 export default async function EditSitePage({ params, searchParams }: { params: Promise<{ siteId: string }>; searchParams: Promise<{ saved?: string }> }) {
   const { siteId } = await params;
   const { saved } = await searchParams;
-  if (!SLUG.test(siteId)) notFound();
-  const { db } = await getDatabase();
-  const viewer = await currentViewer();
-  const site = await getSetupSiteById({ db, viewer, siteId });
-  if (!site) notFound();
-  const units = (await getSetupSites({ db, viewer })).find((s) => s.id === siteId)?.units ?? [];
-  const editable = canEditSetup(viewer);
+  const screen = await loadSetupSiteScreen(siteId);
+  if (!screen) notFound();
+  const { site, units, editable } = screen;
   return (
     <>
-      <SetupCrumbs trail={[{ label: site.name }]} />
+      <Breadcrumbs trail={[{ label: 'Setup', href: '/setup' }, { label: site.name }]} />
       <h1>{site.name}</h1>
       <p className="note">
         Site <span className="unit-id">{site.id}</span> · <a href={`/sites/${site.id}`}>its units’ health</a>
@@ -38,7 +31,7 @@ export default async function EditSitePage({ params, searchParams }: { params: P
       {editable ? (
         <SiteForm
           action={saveSiteAction.bind(null, site.id)}
-          initial={initialFormState({ id: site.id, name: site.name, timezone: site.timezone })}
+          initial={initialFormState(screen.form)}
           editingId={site.id}
           timeZones={timeZoneNames()}
           submitLabel="Save site"
