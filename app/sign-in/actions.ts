@@ -6,13 +6,14 @@
  */
 import { cookies, headers } from 'next/headers';
 import { redirect } from 'next/navigation';
-import { getDatabase } from '@/db/client';
+import { z } from 'zod';
 import { safeNextPath } from '@/lib/auth/access';
 import { writeAudit } from '@/lib/auth/audit';
 import { getPersonById } from '@/lib/auth/people';
 import { clientIp, secureCookies, sessionTimes } from '@/lib/auth/request';
 import { endSession, sessionCookieName, sessionCookieOptions } from '@/lib/auth/sessions';
 import { REFUSED_MESSAGE, signIn } from '@/lib/auth/sign-in';
+import { publicAction } from '@/lib/request/action';
 import type { SignInState } from './state';
 
 function waitWords(s: number): string {
@@ -21,11 +22,16 @@ function waitWords(s: number): string {
   return `${m} minute${m === 1 ? '' : 's'}`;
 }
 
-export async function signInAction(previous: SignInState, data: FormData): Promise<SignInState> {
-  const email = String(data.get('email') ?? '').slice(0, 254);
-  const password = String(data.get('password') ?? '');
-  const next = safeNextPath(String(data.get('next') ?? '/'));
-  const submitted = previous.submitted + 1;
+// Never refused here: a missing field is answered by the handler, naming the field to focus.
+const signInForm = z.object({
+  email: z.string().catch('').transform((s) => s.slice(0, 254)),
+  password: z.string().catch(''),
+  next: z.string().catch('/'),
+});
+
+export const signInAction = publicAction({ input: signInForm }, async ({ db, input, submitted }): Promise<SignInState> => {
+  const { email, password } = input;
+  const next = safeNextPath(input.next);
   if (!email.trim() || !password) {
     return { submitted, email, error: !email.trim() ? 'Enter your e-mail address.' : 'Enter your password.', field: !email.trim() ? 'email' : 'password' };
   }
@@ -39,7 +45,6 @@ export async function signInAction(previous: SignInState, data: FormData): Promi
       error: `This page reached you over plain HTTP at ${h.get('host') ?? 'this address'}, so your browser would not keep the sign-in. Open millrace over HTTPS (behind a TLS proxy), or on this machine at http://localhost.`,
     };
   }
-  const { db } = await getDatabase();
   const result = await signIn({ db, email, password, ip: clientIp(h), userAgent: h.get('user-agent'), times: sessionTimes() });
   if (result.kind === 'throttled') {
     return { submitted, email, retryAfterS: result.retryAfterS, error: `Too many sign-in attempts. Wait ${waitWords(result.retryAfterS)}, then try again. Someone else's attempts do not lock you out of a device you have signed in from before.` };
@@ -52,16 +57,15 @@ export async function signInAction(previous: SignInState, data: FormData): Promi
   if (previousToken) await endSession({ db, token: previousToken });
   jar.set(sessionCookieName(secure), result.token, sessionCookieOptions(secure, times.maxDays * 86_400));
   redirect(result.mustChangePassword ? `/account/password?next=${encodeURIComponent(next)}` : next);
-}
+});
 
-/** Ends the session on the server and clears the cookie. */
-export async function signOutAction(): Promise<void> {
+/** Ends the session on the server and clears the cookie. It answers no state (it always redirects), so a plain form can post it. */
+export const signOutAction: () => Promise<void> = publicAction<never>({}, async ({ db }) => {
   const h = await headers();
   const jar = await cookies();
   const name = sessionCookieName(secureCookies(h));
   const token = jar.get(name)?.value;
   if (token) {
-    const { db } = await getDatabase();
     const ended = await endSession({ db, token });
     if (ended) {
       const person = await getPersonById({ db, personId: ended.personId });
@@ -70,4 +74,4 @@ export async function signOutAction(): Promise<void> {
   }
   jar.delete(name);
   redirect('/sign-in?signed-out=1');
-}
+});

@@ -1,8 +1,8 @@
+import type { ActionState } from '@/lib/request/action';
+
 /** What the sign-in form shows after a try. */
-export interface SignInState {
-  submitted: number;
+export interface SignInState extends ActionState {
   email?: string;
-  error?: string;
   /** Which field the error is about, to focus it. */
   field?: 'email' | 'password';
   retryAfterS?: number;

@@ -1,8 +1,10 @@
 'use client';
 import { useActionState } from 'react';
-import { initialFormResult } from '@/app/admin/form-result';
+import type { ActionState } from '@/lib/request/action';
 import styles from '@/app/account/account.module.css';
 import { changePasswordAction } from '@/app/account/actions';
+
+const INITIAL: ActionState = { submitted: 0 };
 
 function Problem({ message, id }: { message?: string; id: string }) {
   return message ? (
@@ -14,7 +16,7 @@ function Problem({ message, id }: { message?: string; id: string }) {
 
 /** Current password, the new one twice; password managers may generate and fill it. */
 export function PasswordChangeForm({ next }: { next: string }) {
-  const [state, action, pending] = useActionState(changePasswordAction, initialFormResult);
+  const [state, action, pending] = useActionState(changePasswordAction, INITIAL);
   const e = state.fieldErrors ?? {};
   const attrs = (name: string) => (e[name] ? { 'aria-invalid': true as const, 'aria-describedby': `${name}-error` } : {});
   return (

@@ -5,11 +5,16 @@
  */
 import { useActionState, type ReactNode } from 'react';
 import styles from '@/app/account/account.module.css';
-import { initialFormResult, type FormResult } from '@/app/admin/form-result';
+import type { AdminState } from '@/app/admin/actions';
 
-type Action = (previous: FormResult, data: FormData) => Promise<FormResult>;
+type Action = (previous: AdminState, data: FormData) => Promise<AdminState>;
+type Sites = readonly { id: string; name: string }[];
+/** The roles in the menu's order, each with its name in words. */
+type Roles = readonly { value: string; name: string }[];
 
-function Outcome({ state }: { state: FormResult }) {
+const INITIAL: AdminState = { submitted: 0 };
+
+function Outcome({ state }: { state: AdminState }) {
   if (state.submitted === 0) return null;
   return (
     <div role="status" aria-live="polite">
@@ -26,7 +31,7 @@ function Outcome({ state }: { state: FormResult }) {
   );
 }
 
-function FieldError({ state, name }: { state: FormResult; name: string }) {
+function FieldError({ state, name }: { state: AdminState; name: string }) {
   const message = state.fieldErrors?.[name];
   return message ? (
     <span className={styles.error} id={`${name}-error`}>
@@ -35,13 +40,11 @@ function FieldError({ state, name }: { state: FormResult; name: string }) {
   ) : null;
 }
 
-function invalid(state: FormResult, name: string) {
+function invalid(state: AdminState, name: string) {
   return state.fieldErrors?.[name] ? { 'aria-invalid': true as const, 'aria-describedby': `${name}-error` } : {};
 }
 
-const ROLE_WORDS = { admin: 'Administrator', operator: 'Operator', crew: 'Crew', owner: 'Owner' } as const;
-
-function RoleAndSites({ state, sites, role, chosen }: { state: FormResult; sites: { id: string; name: string }[]; role?: string; chosen?: string[] }) {
+function RoleAndSites({ state, roles, sites, role, chosen }: { state: AdminState; roles: Roles; sites: Sites; role?: string; chosen?: readonly string[] }) {
   return (
     <>
       <div className={styles.field}>
@@ -57,9 +60,9 @@ function RoleAndSites({ state, sites, role, chosen }: { state: FormResult; sites
           aria-invalid={state.fieldErrors?.role ? true : undefined}
           aria-describedby={state.fieldErrors?.role ? 'role-hint role-error' : 'role-hint'}
         >
-          {Object.entries(ROLE_WORDS).map(([value, words]) => (
-            <option key={value} value={value}>
-              {words}
+          {roles.map((r) => (
+            <option key={r.value} value={r.value}>
+              {r.name}
             </option>
           ))}
         </select>
@@ -79,8 +82,8 @@ function RoleAndSites({ state, sites, role, chosen }: { state: FormResult; sites
   );
 }
 
-export function AddPersonForm({ action, sites }: { action: Action; sites: { id: string; name: string }[] }) {
-  const [state, formAction, pending] = useActionState(action, initialFormResult);
+export function AddPersonForm({ action, roles, sites }: { action: Action; roles: Roles; sites: Sites }) {
+  const [state, formAction, pending] = useActionState(action, INITIAL);
   return (
     <form action={formAction} className={styles.form}>
       <Outcome state={state} />
@@ -89,7 +92,7 @@ export function AddPersonForm({ action, sites }: { action: Action; sites: { id: 
         <input id="email" name="email" type="email" autoComplete="off" spellCheck={false} defaultValue={state.values?.email} {...invalid(state, 'email')} />
         <FieldError state={state} name="email" />
       </div>
-      <RoleAndSites state={state} sites={sites} />
+      <RoleAndSites state={state} roles={roles} sites={sites} />
       <div className={styles.field}>
         <label htmlFor="password">First password</label>
         <input
@@ -112,11 +115,11 @@ export function AddPersonForm({ action, sites }: { action: Action; sites: { id: 
   );
 }
 
-export function AccessForm({ action, sites, role, chosen }: { action: Action; sites: { id: string; name: string }[]; role: string; chosen: string[] }) {
-  const [state, formAction, pending] = useActionState(action, initialFormResult);
+export function AccessForm({ action, roles, sites, role, chosen }: { action: Action; roles: Roles; sites: Sites; role: string; chosen: readonly string[] }) {
+  const [state, formAction, pending] = useActionState(action, INITIAL);
   return (
     <form action={formAction} className={styles.form}>
-      <RoleAndSites state={state} sites={sites} role={role} chosen={chosen} />
+      <RoleAndSites state={state} roles={roles} sites={sites} role={role} chosen={chosen} />
       <button type="submit" className={styles.primary} disabled={pending}>
         Save role and sites
       </button>
@@ -126,7 +129,7 @@ export function AccessForm({ action, sites, role, chosen }: { action: Action; si
 }
 
 export function PasswordResetForm({ action }: { action: Action }) {
-  const [state, formAction, pending] = useActionState(action, initialFormResult);
+  const [state, formAction, pending] = useActionState(action, INITIAL);
   return (
     <form action={formAction} className={styles.form}>
       <div className={styles.field}>
@@ -144,7 +147,7 @@ export function PasswordResetForm({ action }: { action: Action }) {
 
 /** One button that runs an action (disable, enable, revoke). */
 export function ButtonForm({ action, label, children }: { action: Action; label: string; children?: ReactNode }) {
-  const [state, formAction, pending] = useActionState(action, initialFormResult);
+  const [state, formAction, pending] = useActionState(action, INITIAL);
   return (
     <form action={formAction} className={styles.inline}>
       {children}
@@ -156,8 +159,8 @@ export function ButtonForm({ action, label, children }: { action: Action; label:
   );
 }
 
-export function NameForm({ action, label, field, hint, scopes }: { action: Action; label: string; field: string; hint: string; scopes?: { value: string; label: string }[] }) {
-  const [state, formAction, pending] = useActionState(action, initialFormResult);
+export function NameForm({ action, label, field, hint, scopes }: { action: Action; label: string; field: string; hint: string; scopes?: readonly { value: string; label: string }[] }) {
+  const [state, formAction, pending] = useActionState(action, INITIAL);
   const id = `${field}-${label.replace(/\W+/g, '-').toLowerCase()}`;
   return (
     <form action={formAction} className={styles.form}>
