@@ -7,6 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { LOCAL_VIEWER } from '@/lib/auth/viewer';
 import { getQuarantineCountsByUnit, getQuarantinePage, type QuarantineCursor } from '@/lib/quality/queries';
+import { readDataQualityScreen } from '@/lib/quality/screen';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { queryRows, registerFleet, testFleet, testTag } from '@/test/support/ingest';
 
@@ -84,5 +85,23 @@ describe('set-aside telemetry per unit over the last 24 hours', () => {
   it('stops counting at the cap and says so', async () => {
     const counts = await getQuarantineCountsByUnit({ db: t.handle.db, viewer: LOCAL_VIEWER, nowMs: now + 1000, cap: 10 });
     expect(counts).toMatchObject({ total: 10, capped: true });
+  });
+
+  it('builds the screen: a bad search parameter is named and dropped, rows link to their unit, the pager walks on', async () => {
+    const bad = await readDataQualityScreen({ db: t.handle.db, viewer: LOCAL_VIEWER, search: { site: 'Not A Slug!' } });
+    expect(bad.problem).toBe('site: not a site id (1 to 64 of a-z, 0-9 and -)');
+    expect(bad.what).toBe('all sites');
+    expect(bad.filtered).toBe(false);
+    const screen = await readDataQualityScreen({ db: t.handle.db, viewer: LOCAL_VIEWER, search: { unit: w1.id, site: [w1.siteId, 'other'] } });
+    expect(screen.problem).toBeUndefined();
+    expect(screen.what).toBe(`unit ${w1.id}`);
+    expect(screen.counts.rows.map((r) => [r.label, r.href])).toEqual([[`${w1.siteId}/${w1.id}`, `/data-quality?site=${w1.siteId}&unit=${w1.id}`]]);
+    expect(screen.entries).toHaveLength(25);
+    expect(screen.newestHref).toBeUndefined();
+    expect(screen.olderHref).toMatch(new RegExp(`^/data-quality\\?site=${w1.siteId}&unit=${w1.id}&before=\\d+-\\d+$`));
+    const older = await readDataQualityScreen({ db: t.handle.db, viewer: LOCAL_VIEWER, search: { site: w1.siteId, unit: w1.id, before: new URL(screen.olderHref!, 'http://x').searchParams.get('before')! } });
+    expect(older.entries).toHaveLength(5);
+    expect(older.newestHref).toBe(`/data-quality?site=${w1.siteId}&unit=${w1.id}`);
+    expect(older.olderHref).toBeUndefined();
   });
 });
