@@ -1,5 +1,5 @@
 import type { Metadata } from 'next';
-import { QUARANTINE_COUNT_CAP } from '@/lib/fleet/queries';
+import { QUARANTINE_COUNT_CAP } from '@/lib/quality/queries';
 import { loadFleetScreen } from '@/lib/fleet/overview';
 import { UNIT_STATES, sinceText } from '@/lib/fleet/unit-state';
 import { SAFETY_CAUTION } from '@/lib/diagnosis/findings';

@@ -14,10 +14,10 @@ import postgres from 'postgres';
 import { openDatabase, type DatabaseHandle } from '@/db/client';
 import { fleetSchema } from '@/lib/contract/nameplate';
 import type { TelemetrySample } from '@/lib/contract/telemetry';
-import { upsertFleet } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { insertSampleRows, upsertUnitLastSeen, type SampleRow, type UnitSeen } from '@/lib/ingest/queries';
 import { inTransaction } from '@/lib/ingest/sql';
-import { runDiagnosisPass } from '@/lib/diagnosis/live';
+import { runDiagnosisPass } from '@/lib/diagnosis/worker';
 import { generatorTerminals } from '@/lib/physics/generator-model';
 
 const unitCount = Number(process.argv[2] ?? 1000);

@@ -6,7 +6,8 @@ import { getDatabase, type Db } from '@/db/client';
 import { canEditSetup, currentViewer, siteFilter, type Viewer } from '@/lib/auth/viewer';
 import { getConfig } from '@/lib/config/env';
 import { getComponentState } from '@/lib/server/registry';
-import { getFleetSites, getQuarantineSummary, getSiteView, type FleetSite, type QuarantineSummary, type SiteView } from './queries';
+import { getFleetSites, getSiteView, type FleetSite, type SiteView } from './queries';
+import { getQuarantineSummary, type QuarantineSummary } from '@/lib/quality/queries';
 import { parseSiteTableParams, sortSiteUnits, type SiteTableParams } from './site-table';
 import type { UnitLatest } from './queries';
 

@@ -5,8 +5,9 @@
  * data. Every read is bounded: pages walk the received-time index backwards
  * from a cursor, and the day's counts read at most {@link DAY_COUNT_CAP} rows.
  */
-import { sql, type SQL } from 'drizzle-orm';
+import { desc, sql, type SQL } from 'drizzle-orm';
 import { rowsOf, type Db } from '@/db/client';
+import { quarantine } from '@/db/schema';
 import { siteFilter, type Viewer } from '@/lib/auth/viewer';
 
 /** Rows a page shows. */
@@ -158,4 +159,32 @@ export async function getQuarantineCountsByUnit({
   const units = rows.map((r) => ({ siteId: r.site_id, unitId: r.unit_id, count: Number(r.n), lastAt: new Date(r.last_at), lastReason: r.last_reason }));
   const total = Number(rows[0]?.total ?? 0);
   return { units, total: Math.min(total, cap), capped: total > cap };
+}
+
+/** Counts of set-aside telemetry stop here: a device that floods the table must not make every page render scan it. */
+export const QUARANTINE_COUNT_CAP = 10_000;
+
+export interface QuarantineSummary {
+  /** Rows kept (retention: RETENTION_DAYS), at most {@link QUARANTINE_COUNT_CAP} + 1 (meaning "more than the cap"). */
+  total: number;
+  /** Rows that arrived in the last day, capped the same way. */
+  lastDay: number;
+  recent: Array<{ receivedAt: Date; topic: string; reason: string }>;
+}
+
+/** How much telemetry was set aside as invalid, and the newest reasons, for the operator. */
+export async function getQuarantineSummary({ db, recentLimit = 5 }: { db: Db; recentLimit?: number }): Promise<QuarantineSummary> {
+  const limit = QUARANTINE_COUNT_CAP + 1;
+  // Each count reads at most cap + 1 rows (the last day by the received_at index).
+  const [counts] = rowsOf<{ total: number; lastDay: number }>(
+    await db.execute(sql`select
+      (select count(*) from (select 1 from ${quarantine} limit ${limit}) t)::int as "total",
+      (select count(*) from (select 1 from ${quarantine} where ${quarantine.receivedAt} > now() - interval '1 day' limit ${limit}) d)::int as "lastDay"`),
+  );
+  const recent = await db
+    .select({ receivedAt: quarantine.receivedAt, topic: quarantine.topic, reason: quarantine.reason })
+    .from(quarantine)
+    .orderBy(desc(quarantine.id))
+    .limit(recentLimit);
+  return { total: Number(counts?.total ?? 0), lastDay: Number(counts?.lastDay ?? 0), recent };
 }

@@ -84,8 +84,8 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   registerComponent('ingester', { state: () => ingester.state() });
   registerLivePublisher(live);
 
-  const { startLiveDiagnosis } = await import('@/lib/diagnosis/live');
-  const diagnosis = startLiveDiagnosis({
+  const { startDiagnosisWorker } = await import('@/lib/diagnosis/worker');
+  const diagnosis = startDiagnosisWorker({
     db: handle.db,
     intervalS: config.DIAGNOSIS_INTERVAL_S,
     windowHours: config.DIAGNOSIS_WINDOW_HOURS,
@@ -127,7 +127,7 @@ async function liveComponent(handle: DatabaseHandle, log: Logger, stack: Stoppab
 async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: string, log: Logger, stack: Stoppable[], embedded: boolean) {
   const { demoFleet } = await import('@/lib/simulate/demo-fleet');
   const { startSimulator, backfill } = await import('@/lib/simulate/simulator');
-  const { upsertFleet } = await import('@/lib/fleet/queries');
+  const { upsertFleet } = await import('@/lib/setup/queries');
   await upsertFleet({ db: handle.db, fleet: demoFleet });
   if (handle.backend === 'pglite') {
     // Embedded demo with nobody yet: an admin whose one-time password goes to the console (lib/auth/demo-admin.ts).

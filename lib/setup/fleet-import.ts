@@ -12,7 +12,7 @@ import { sites, units } from '@/db/schema';
 import { canEditSetup, canSeeSite, type Viewer } from '@/lib/auth/viewer';
 import { fleetSchema, type Fleet } from '@/lib/contract/nameplate';
 import { formatIssues } from '@/lib/contract/telemetry';
-import { findFleetProblems, upsertFleet, type FleetUpsertResult } from '@/lib/fleet/queries';
+import { findFleetProblems, upsertFleet, type FleetUpsertResult } from '@/lib/setup/queries';
 
 /** Largest FLEET.json the setup screen takes (some 1,500 units): under the 1 MB a server action accepts. */
 export const MAX_FLEET_FILE_BYTES = 900_000;

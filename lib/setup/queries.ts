@@ -5,12 +5,12 @@
  * `canEditSetup(viewer)`, and a site or unit the viewer may not see is
  * `undefined`, never told apart from one that does not exist.
  */
-import { and, asc, eq, inArray } from 'drizzle-orm';
+import { and, asc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
 import { sites, units, type SiteRow } from '@/db/schema';
 import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
 import type { Fleet, Nameplate, Site } from '@/lib/contract/nameplate';
-import { nameplateOfUnit, upsertFleet } from '@/lib/fleet/queries';
+import { nameplateOfUnit } from '@/lib/fleet/queries';
 import type { FieldErrors } from './forms';
 import { actorOfViewer, writeAudit } from '@/lib/auth/audit';
 
@@ -147,4 +147,90 @@ export async function getFleetExport({ db, viewer }: { db: Db; viewer: Viewer })
     .where(only === undefined ? undefined : inArray(units.siteId, [...only]))
     .orderBy(asc(units.siteId), asc(units.id));
   return { sites: siteRows, units: unitRows.map(nameplateOfUnit) };
+}
+
+// ---------------------------------------------------------------------------
+// Registering a whole fleet (FLEET.json, `units import`, the demo): upserts by id.
+
+/** Nameplate fields as unit columns. */
+function unitValues(unit: Nameplate) {
+  return {
+    id: unit.id,
+    siteId: unit.siteId,
+    name: unit.name ?? null,
+    kind: unit.kind,
+    ratedKw: unit.ratedKw,
+    ratedRpm: unit.ratedRpm,
+    maxRpm: unit.maxRpm,
+    poles: unit.poles,
+    keVPerKrpm: unit.keVPerKrpm,
+    keRefC: unit.keRefC,
+    magnet: unit.magnet,
+    magnetTempCoeffPctPerC: unit.magnetTempCoeffPctPerC ?? null,
+    phaseOhm: unit.phaseOhm,
+    phaseMh: unit.phaseMh,
+    powerCurve: unit.powerCurve ?? null,
+    cutInMs: unit.cutInMs ?? null,
+    cutOutMs: unit.cutOutMs ?? null,
+    rotorDiameterM: unit.rotorDiameterM ?? null,
+    designHeadM: unit.designHeadM ?? null,
+    designFlowM3s: unit.designFlowM3s ?? null,
+    efficiency: unit.efficiency ?? null,
+    diagnosis: unit.diagnosis ?? null,
+  };
+}
+
+export interface FleetUpsertResult {
+  sitesCreated: number;
+  sitesUpdated: number;
+  unitsCreated: number;
+  unitsUpdated: number;
+}
+
+/**
+ * Registers or updates the sites and units of a validated fleet, matched by
+ * id, in one transaction. A unit whose site is neither in the file nor in the
+ * database is a problem reported by `findFleetProblems` before this runs.
+ */
+export async function upsertFleet({ db, fleet }: { db: Db; fleet: Fleet }): Promise<FleetUpsertResult> {
+  return db.transaction(async (tx) => {
+    const result: FleetUpsertResult = { sitesCreated: 0, sitesUpdated: 0, unitsCreated: 0, unitsUpdated: 0 };
+    const existingSites = new Set((await tx.select({ id: sites.id }).from(sites)).map((s) => s.id));
+    for (const site of fleet.sites) {
+      await tx
+        .insert(sites)
+        .values({ id: site.id, name: site.name, timezone: site.timezone })
+        .onConflictDoUpdate({
+          target: sites.id,
+          set: { name: site.name, timezone: site.timezone, updatedAt: sql`now()` },
+        });
+      if (existingSites.has(site.id)) result.sitesUpdated++;
+      else result.sitesCreated++;
+    }
+    const existingUnits = new Set((await tx.select({ id: units.id }).from(units)).map((u) => u.id));
+    for (const unit of fleet.units) {
+      const values = unitValues(unit);
+      const { id: _id, ...set } = values;
+      await tx
+        .insert(units)
+        .values(values)
+        .onConflictDoUpdate({ target: units.id, set: { ...set, updatedAt: sql`now()` } });
+      if (existingUnits.has(unit.id)) result.unitsUpdated++;
+      else result.unitsCreated++;
+    }
+    return result;
+  });
+}
+
+/**
+ * Problems that need the database to see: a unit naming a site that exists
+ * neither in the file nor in the database. Paths as in the fleet file.
+ */
+export async function findFleetProblems({ db, fleet }: { db: Db; fleet: Fleet }): Promise<string[]> {
+  const known = new Set([...(await db.select({ id: sites.id }).from(sites)).map((s) => s.id), ...fleet.sites.map((s) => s.id)]);
+  const problems: string[] = [];
+  fleet.units.forEach((unit, i) => {
+    if (!known.has(unit.siteId)) problems.push(`units[${i}].siteId: no site "${unit.siteId}" in the file or the database`);
+  });
+  return problems;
 }

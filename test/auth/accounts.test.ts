@@ -16,7 +16,7 @@ import { createSession, endSession, resolveSession } from '@/lib/auth/sessions';
 import { signIn } from '@/lib/auth/sign-in';
 import { FREE_FAILURES, MAX_WAIT_S } from '@/lib/auth/throttle';
 import { canEditSetup } from '@/lib/auth/viewer';
-import { upsertFleet } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { testFleet, testTag } from '@/test/support/ingest';
 

@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { addPerson, viewerOfPerson } from '@/lib/auth/people';
 import type { Role } from '@/lib/contract/roles';
 import type { Viewer } from '@/lib/auth/viewer';
-import { upsertFleet } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { formOfNameplate } from '@/lib/setup/forms';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { testFleet, testTag } from '@/test/support/ingest';

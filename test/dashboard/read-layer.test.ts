@@ -7,7 +7,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { sql } from 'drizzle-orm';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
-import { upsertFleet, getFleetSites, getSiteView, getSitesWithUnitIds } from '@/lib/fleet/queries';
+import { getFleetSites, getSiteView, getSitesWithUnitIds } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { getUnitView, getUnitSeries, getUnitHealthReport, getUnitEmfView, getUnitKeHistory } from '@/lib/units/queries';
 import { LOCAL_VIEWER, type Viewer } from '@/lib/auth/viewer';
 import type { Fleet } from '@/lib/contract/nameplate';

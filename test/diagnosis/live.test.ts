@@ -9,11 +9,11 @@ import { rowsOf } from '@/db/client';
 import { unitHealthHistory } from '@/db/schema';
 import { fleetSchema } from '@/lib/contract/nameplate';
 import type { TelemetrySample } from '@/lib/contract/telemetry';
-import { upsertFleet } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { insertSampleRows, upsertUnitLastSeen } from '@/lib/ingest/queries';
 import { inTransaction } from '@/lib/ingest/sql';
 import { createLogger } from '@/lib/log/logger';
-import { runDiagnosisPass, startLiveDiagnosis } from '@/lib/diagnosis/live';
+import { runDiagnosisPass, startDiagnosisWorker } from '@/lib/diagnosis/worker';
 import { backendDescription, createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { TEST_NAMEPLATE, syntheticSamples, type SyntheticOptions } from '@/test/support/synthetic-unit';
 
@@ -165,7 +165,7 @@ describe(`live diagnosis (${backendDescription()})`, () => {
     const key = keys.get('lv-sensor')!;
     await store(key, syntheticSamples({ speedSensorFactor: 0.9, startMs: start + count * 10_000, count: 1, seed: 7 }), Date.now() - 1000);
     const lines: string[] = [];
-    const stop = startLiveDiagnosis({ db: t.handle.db, intervalS: 3600, windowHours: 6, log: createLogger('diagnosis', 'info', (l) => lines.push(l)) });
+    const stop = startDiagnosisWorker({ db: t.handle.db, intervalS: 3600, windowHours: 6, log: createLogger('diagnosis', 'info', (l) => lines.push(l)) });
     await stop();
     const pass = lines.map((l) => JSON.parse(l)).find((l) => l.msg === 'diagnosis pass');
     expect(pass?.units).toBe(1);

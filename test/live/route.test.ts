@@ -10,7 +10,7 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { LOCAL_VIEWER, type Viewer } from '@/lib/auth/viewer';
 import { closeDatabase, getDatabase } from '@/db/client';
-import { upsertFleet } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { getLiveHub } from '@/lib/live/hub';
 import type { LiveEvent } from '@/lib/live/events';
 import { testFleet, testTag } from '@/test/support/ingest';

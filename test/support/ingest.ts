@@ -11,7 +11,7 @@ import mqtt, { type MqttClient } from 'mqtt';
 import { startEmbeddedBroker } from '@/lib/broker/embedded';
 import { fleetSchema, type Fleet } from '@/lib/contract/nameplate';
 import { createLogger, type Logger } from '@/lib/log/logger';
-import { upsertFleet } from '@/lib/fleet/queries';
+import { upsertFleet } from '@/lib/setup/queries';
 import { freePort } from '@/lib/net/ports';
 import type { DatabaseHandle } from '@/db/client';
 import type { TelemetrySample } from '@/lib/contract/telemetry';

@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
-import { QUARANTINE_COUNT_CAP, getQuarantineSummary } from './queries';
+import { QUARANTINE_COUNT_CAP, getQuarantineSummary } from '@/lib/quality/queries';
 
 let testDb: TestDatabase;
 beforeAll(async () => {
