@@ -58,6 +58,39 @@ export interface DeviceCredentials {
 /** Gives each unit its own credentials; undefined falls back to the shared username and password. */
 export type CredentialsFor = (siteId: string, unitId: string) => DeviceCredentials | undefined;
 
+/** How a run's units reach the broker, and as whom (the live simulator's and the backfill's options). */
+export interface BrokerAccess {
+  brokerUrl: string;
+  log: Logger;
+  username?: string | undefined;
+  password?: string | undefined;
+  /** Each unit's own credentials (a broker that checks who publishes where); else `username`/`password` for all. */
+  credentialsFor?: CredentialsFor | undefined;
+}
+
+/**
+ * The device of one unit in a run: the unit's own credentials when
+ * `credentialsFor` has them, else the run's shared ones.
+ * @example deviceForUnit({ brokerUrl: 'mqtt://127.0.0.1:1883', log }, { siteId: 'quorvenna-ildresk', id: 'qv-01' }, { clientId: 'millrace-sim-qv-01', presence: true })
+ */
+export function deviceForUnit(
+  access: BrokerAccess,
+  unit: { readonly siteId: string; readonly id: string },
+  how: { readonly clientId: string; readonly presence: boolean },
+): UnitDevice {
+  const own = access.credentialsFor?.(unit.siteId, unit.id);
+  return new UnitDevice({
+    brokerUrl: access.brokerUrl,
+    siteId: unit.siteId,
+    unitId: unit.id,
+    clientId: how.clientId,
+    username: own?.username ?? access.username,
+    password: own?.password ?? access.password,
+    log: access.log,
+    presence: how.presence,
+  });
+}
+
 export interface DeviceOptions {
   brokerUrl: string;
   siteId: string;

@@ -55,6 +55,18 @@ export function defaultFaultEpochMs(nowMs: number): number {
   return Math.floor(nowMs / HOUR_MS) * HOUR_MS - DEMO_FAULT_LEAD_DAYS * DAY_MS;
 }
 
+/**
+ * `value` if it is a number from `min` to `max` (a whole number if
+ * `integer`), else an AppError naming the option.
+ * @example checkRange('rateHz', 2, 0.01, 50) // 2
+ */
+export function checkRange(name: string, value: number, min: number, max: number, integer = false): number {
+  if (!Number.isFinite(value) || value < min || value > max || (integer && !Number.isInteger(value))) {
+    throw new AppError('bad-input', 'simulate', `${name} must be ${integer ? 'a whole number ' : ''}from ${min} to ${max}, got ${value}`);
+  }
+  return value;
+}
+
 /** Validates a fleet and says what is wrong with it, field by field. */
 export function parseFleet(input: unknown): Fleet {
   const parsed = fleetSchema.safeParse(input);

@@ -9,6 +9,7 @@ import { powerCurveLookup } from '@/lib/energy/power-curve';
 import { normaliseWindSpeedMs } from '@/lib/energy/air-density';
 import { hydroPowerKw } from '@/lib/energy/hydro-power';
 import { demoFleet, demoUnitScenarios } from './demo-fleet';
+import { SCAN_DEPTH, SCAN_EVERY_S } from './controls';
 import type { FaultPlan } from './faults';
 import {
   AS_BUILT_KE_MAX,
@@ -19,8 +20,6 @@ import {
   THERMAL_TAU_S,
   UnitModel,
   LOAD_POWER_FACTOR,
-  SCAN_DEPTH,
-  SCAN_EVERY_S,
   isoWithOffset,
   type UnitScenario,
 } from './machine';

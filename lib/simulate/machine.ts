@@ -30,6 +30,7 @@ import { reactanceOhm } from '@/lib/physics/reactance';
 import { powerCurveLookup } from '@/lib/energy/power-curve';
 import { normaliseWindSpeedMs } from '@/lib/energy/air-density';
 import { hydroPowerKw } from '@/lib/energy/hydro-power';
+import { SCAN_DEPTH, SCAN_EVERY_S, freeRotorRpm, hydroEfficiency, hydroRunsAfter, scanDepthAt, windProtection } from './controls';
 import { faultEffects, validateFaultPlan, type FaultEffects, type FaultPlan, type FaultSettings } from './faults';
 import { Ar1, gaussian, mulberry32, seedFor } from './random';
 import { zoneOffsetMinutes, type WeatherSource } from './weather';
@@ -40,27 +41,12 @@ export const RECTIFIER_POWER_FACTOR = 0.95;
 export const RESISTIVE_POWER_FACTOR = 1;
 /** Load power factor of each load kind. */
 export const LOAD_POWER_FACTOR = { rectifier: RECTIFIER_POWER_FACTOR, resistive: RESISTIVE_POWER_FACTOR } as const;
-/** Maximum power point scans of hydro inverters: every SCAN_EVERY_S, SCAN_S long, down to 1 − SCAN_DEPTH of rated speed. */
-export const SCAN_EVERY_S = 20 * 60;
-export const SCAN_S = 120;
-export const SCAN_DEPTH = 0.14;
-/**
- * Loss of turbine efficiency off its best runner speed: η·(1 − k·(n/n₀ − 1)²),
- * the parabola impulse turbines follow near their best point (common practice, no published source).
- */
-const RUNNER_SPEED_LOSS_K = 1.5;
 /** Winding temperature rise over coolant at rated current, K (class F insulation run at class B rise, common practice). */
 export const RATED_RISE_K = { wind: 60, hydro: 55 } as const;
 /** Thermal time constant of the stator winding, s (small machines: tens of minutes, common practice). */
 export const THERMAL_TAU_S = { wind: 25 * 60, hydro: 40 * 60 } as const;
 /** Integral time scale of the turbulence at hub height, s (a few seconds at small hub heights, common practice). */
 export const TURBULENCE_TAU_S = 6;
-/** Hydro units stop below this fraction of design flow and start again above START. */
-const HYDRO_STOP_FRACTION = 0.12;
-const HYDRO_START_FRACTION = 0.18;
-/** A wind unit restarts after cut-out once the wind has stayed this far below cut-out for RESTART_MS. */
-const RESTART_MARGIN_MS = 4;
-const RESTART_MS = 10 * 60_000;
 /** Winding temperature at which the rated current is worked out, °C. */
 const RATED_WINDING_C = 80;
 
@@ -149,6 +135,28 @@ export interface UnitTruth {
   readonly flowM3s?: number;
   readonly headM?: number;
   readonly overspeed: boolean;
+}
+
+/** The clock of one step: whether it is the unit's first, seconds since the last, and how far a lag of time constant `tauS` catches up. */
+interface StepClock {
+  readonly tMs: number;
+  readonly first: boolean;
+  readonly dtS: number;
+  readonly lag: (tauS: number) => number;
+}
+
+/** What the prime mover and its surroundings give the generator at one step. */
+interface Drive {
+  /** Power the prime mover offers, kW (the terminals may carry less). */
+  kwAsked: number;
+  mode: UnitTruth['mode'];
+  ambientC: number;
+  /** Temperature of the air that cools the winding, °C. */
+  coolantC: number;
+  /** An overspeed gust is blowing. */
+  overspeed: boolean;
+  wind?: { readonly windMs: number; readonly airKgM3: number };
+  water?: { readonly flowM3s: number; readonly headM: number };
 }
 
 /** Options of a unit model. */
@@ -290,132 +298,131 @@ export class UnitModel {
 
   /** Advances the unit to `tMs` and returns what its logger reports, and the truth. */
   step(tMs: number): { sample: PublishedSample; truth: UnitTruth } {
-    if (!Number.isFinite(tMs)) throw new RangeError(`tMs must be a finite epoch ms, got ${tMs}`);
-    const first = this.lastMs === undefined;
-    if (!first && tMs < this.lastMs!) throw new RangeError(`tMs must not go back: ${tMs} after ${this.lastMs}`);
-    const dtS = first ? 0 : Math.min(3600, (tMs - this.lastMs!) / 1000);
-    this.lastMs = tMs;
-    const np = this.nameplate;
+    const clock = this.advanceClock(tMs);
     const effects = faultEffects(this.scenario.faults, tMs, this.options.faults);
-    const lag = (tauS: number) => (first ? 1 : 1 - Math.exp(-dtS / tauS));
-
-    let kwAsked = 0;
-    let mode: UnitTruth['mode'] = 'generating';
-    let coolantC: number;
-    let ambientC: number;
-    let windMs: number | undefined;
-    let airKgM3: number | undefined;
-    let flowM3s: number | undefined;
-    let headM: number | undefined;
-    let overspeed = false;
-
-    if (np.kind === 'wind') {
-      const meanMs = this.weather.windMeanMs(tMs) * this.scenario.exposure;
-      const ti = this.weather.climate.turbulenceIntensity ?? 0.12;
-      let v = Math.max(0, meanMs * (1 + ti * this.turbulence.step(dtS)));
-      if (effects.overspeedGust !== undefined) {
-        v = Math.max(v, effects.overspeedGust * this.ratedWindMs);
-        overspeed = true;
-      }
-      windMs = v;
-      ambientC = this.weather.airC(tMs);
-      coolantC = ambientC;
-      airKgM3 = this.weather.airDensityKgM3(tMs);
-      this.rotorWindMs += (v - this.rotorWindMs) * lag(this.rotorTauS);
-      const cutIn = np.cutInMs!;
-      const cutOut = np.cutOutMs!;
-      if (this.rotorWindMs >= cutOut) this.stoppedUntilMs = tMs + RESTART_MS;
-      else if (tMs < this.stoppedUntilMs && this.rotorWindMs > cutOut - RESTART_MARGIN_MS) this.stoppedUntilMs = tMs + RESTART_MS;
-      const stopped = tMs < this.stoppedUntilMs;
-      // Connect at cut-in, let go half a metre per second lower (hysteresis).
-      if (stopped) this.connected = false;
-      else if (this.rotorWindMs >= cutIn) this.connected = true;
-      else if (this.rotorWindMs < cutIn - 0.5) this.connected = false;
-      const freeRpm = ((this.tipSpeedRatio * this.rotorWindMs) / (np.rotorDiameterM! / 2)) * (60 / (2 * Math.PI));
-      let targetRpm: number;
-      if (stopped) {
-        mode = 'stopped';
-        targetRpm = 0;
-      } else {
-        // Speed regulation holds rated speed above rated wind, except while it lags a gust.
-        // In a late-regulated gust the rotor runs free up to the gust's own speed, then the furl catches it.
-        targetRpm = Math.min(freeRpm, overspeed ? effects.overspeedGust! * np.ratedRpm : np.ratedRpm);
-        targetRpm *= 1 + 0.004 * this.governor.step(dtS);
-        if (this.connected) {
-          const vn = normaliseWindSpeedMs(this.rotorWindMs, airKgM3);
-          kwAsked = Math.max(0, this.kwAt(Math.min(vn, cutOut - 1e-9)) * (1 + 0.01 * this.converter.step(dtS)));
-        } else mode = 'idling';
-      }
-      this.rpm += (Math.max(0, targetRpm) - this.rpm) * lag(this.speedTauS);
-    } else {
-      const designQ = np.designFlowM3s!;
-      const available = this.weather.availableFlowFraction(tMs) * this.scenario.exposure;
-      if (this.hydroRunning && available < HYDRO_STOP_FRACTION) this.hydroRunning = false;
-      else if (!this.hydroRunning && available > HYDRO_START_FRACTION) this.hydroRunning = true;
-      // The turbine takes at most its design flow; the rest spills over the weir.
-      const q = this.hydroRunning ? Math.min(1, available) * (1 + 0.01 * this.flowRipple.step(dtS)) : 0;
-      flowM3s = q * designQ;
-      // Penstock friction grows with the square of the flow; the forebay level wanders a little.
-      headM = np.designHeadM! * (1.03 - 0.03 * q * q) * (1 + 0.002 * this.levelRipple.step(dtS));
-      // Below rated speed only while the inverter scans for its maximum power point.
-      const speedFactor = this.scenario.load === 'rectifier' ? 1 - SCAN_DEPTH * this.scanDepthAt(tMs) : 1;
-      // Part-flow efficiency falls off (turbine hill chart), and off the best runner speed too (common practice).
-      const eta = np.efficiency! * (1 - 0.25 * (1 - Math.min(1, q)) ** 2) * (1 - RUNNER_SPEED_LOSS_K * (speedFactor - 1) ** 2);
-      kwAsked = Math.min(np.ratedKw, hydroPowerKw(flowM3s, headM, eta));
-      ambientC = this.weather.waterC(tMs);
-      // The powerhouse air the generator breathes runs a few kelvin above the water.
-      coolantC = ambientC + 4;
-      const targetRpm = this.hydroRunning ? np.ratedRpm * speedFactor * (1 + 0.003 * this.governor.step(dtS)) : 0;
-      this.rpm += (targetRpm - this.rpm) * lag(this.speedTauS);
-      if (!this.hydroRunning) {
-        mode = 'stopped';
-        kwAsked = 0;
-      }
-    }
-    if (this.rpm < 0.5 || mode === 'idling') kwAsked = 0;
+    const drive = this.nameplate.kind === 'wind' ? this.driveWind(clock, effects) : this.driveHydro(clock);
+    if (this.rpm < 0.5 || drive.mode === 'idling') drive.kwAsked = 0;
     if (this.rpm < 1e-3) this.rpm = 0;
-
-    if (first) this.statorC = coolantC;
-    let terminals = this.terminals(kwAsked, effects);
-    if (first) {
-      // Start warm: at the steady temperature of the first operating point.
-      this.statorC = this.steadyStatorC(coolantC, terminals.ia, effects);
-      terminals = this.terminals(kwAsked, effects);
-    }
-    const magnetC = this.statorC;
-    const hz = terminals.hz;
-    const truth: UnitTruth = {
-      tMs,
-      mode: kwAsked > 0 ? 'generating' : mode === 'generating' ? 'idling' : mode,
-      rpm: this.rpm,
-      hz,
-      emfLlV: terminals.emfLlV,
-      keNowVPerKrpm: this.rpm > 0 ? (terminals.emfLlV * 1000) / this.rpm : 0,
-      magnetC,
-      statorC: this.statorC,
-      ohmPerPhase: copperOhmAt(np.phaseOhm, this.statorC),
-      reactanceOhm: reactanceOhm(hz, np.phaseMh),
-      powerFactor: terminals.powerFactor,
-      terminals,
-      effects,
-      coolantC,
-      ...(windMs !== undefined ? { windMs, rotorWindMs: this.rotorWindMs, airKgM3: airKgM3! } : {}),
-      ...(flowM3s !== undefined ? { flowM3s, headM: headM! } : {}),
-      overspeed: overspeed && this.rpm > np.maxRpm,
-    };
-    const sample = this.report(truth, ambientC, effects);
+    const terminals = this.terminalsOfStep(clock, drive, effects);
+    const truth = this.truthOf(tMs, drive, terminals, effects);
+    const sample = this.report(truth, drive.ambientC, effects);
     // Heat for the next step from this step's current.
-    const steady = this.steadyStatorC(coolantC, terminals.ia, effects);
-    this.statorC = steady + (this.statorC - steady) * Math.exp(-dtS / THERMAL_TAU_S[np.kind]);
+    const steady = this.steadyStatorC(drive.coolantC, terminals.ia, effects);
+    this.statorC = steady + (this.statorC - steady) * Math.exp(-clock.dtS / THERMAL_TAU_S[this.nameplate.kind]);
     return { sample, truth };
   }
 
-  /** How far into its sweep a scan is at `tMs`: 0 outside scans, rising to 1 mid-scan and back. */
-  private scanDepthAt(tMs: number): number {
-    const everyMs = SCAN_EVERY_S * 1000;
-    const intoMs = (((tMs - this.scanPhaseMs) % everyMs) + everyMs) % everyMs;
-    const scanMs = SCAN_S * 1000;
-    return intoMs >= scanMs ? 0 : 1 - Math.abs((2 * intoMs) / scanMs - 1);
+  /** Moves the unit's clock to `tMs` (rising); a gap counts as at most an hour. */
+  private advanceClock(tMs: number): StepClock {
+    if (!Number.isFinite(tMs)) throw new RangeError(`tMs must be a finite epoch ms, got ${tMs}`);
+    const last = this.lastMs;
+    if (last !== undefined && tMs < last) throw new RangeError(`tMs must not go back: ${tMs} after ${last}`);
+    const first = last === undefined;
+    const dtS = first ? 0 : Math.min(3600, (tMs - last) / 1000);
+    this.lastMs = tMs;
+    // The first step starts settled: every lag has caught up.
+    return { tMs, first, dtS, lag: (tauS) => (first ? 1 : 1 - Math.exp(-dtS / tauS)) };
+  }
+
+  /** The wind and the rotor: speed control, protection, and the power the rotor offers. */
+  private driveWind({ tMs, dtS, lag }: StepClock, effects: FaultEffects): Drive {
+    const np = this.nameplate;
+    const meanMs = this.weather.windMeanMs(tMs) * this.scenario.exposure;
+    const ti = this.weather.climate.turbulenceIntensity ?? 0.12;
+    let windMs = Math.max(0, meanMs * (1 + ti * this.turbulence.step(dtS)));
+    let overspeed = false;
+    if (effects.overspeedGust !== undefined) {
+      windMs = Math.max(windMs, effects.overspeedGust * this.ratedWindMs);
+      overspeed = true;
+    }
+    const ambientC = this.weather.airC(tMs);
+    const airKgM3 = this.weather.airDensityKgM3(tMs);
+    this.rotorWindMs += (windMs - this.rotorWindMs) * lag(this.rotorTauS);
+    const cutOutMs = np.cutOutMs!;
+    const protection = windProtection({ stoppedUntilMs: this.stoppedUntilMs, connected: this.connected }, { tMs, rotorWindMs: this.rotorWindMs, cutInMs: np.cutInMs!, cutOutMs });
+    this.stoppedUntilMs = protection.stoppedUntilMs;
+    this.connected = protection.connected;
+    const drive: Drive = { kwAsked: 0, mode: 'generating', ambientC, coolantC: ambientC, overspeed, wind: { windMs, airKgM3 } };
+    let targetRpm: number;
+    if (protection.stopped) {
+      drive.mode = 'stopped';
+      targetRpm = 0;
+    } else {
+      // Speed regulation holds rated speed above rated wind, except while it lags a gust.
+      // In a late-regulated gust the rotor runs free up to the gust's own speed, then the furl catches it.
+      const freeRpm = freeRotorRpm(this.tipSpeedRatio, this.rotorWindMs, np.rotorDiameterM!);
+      targetRpm = Math.min(freeRpm, overspeed ? effects.overspeedGust! * np.ratedRpm : np.ratedRpm);
+      targetRpm *= 1 + 0.004 * this.governor.step(dtS);
+      if (this.connected) {
+        const vn = normaliseWindSpeedMs(this.rotorWindMs, airKgM3);
+        drive.kwAsked = Math.max(0, this.kwAt(Math.min(vn, cutOutMs - 1e-9)) * (1 + 0.01 * this.converter.step(dtS)));
+      } else drive.mode = 'idling';
+    }
+    this.rpm += (Math.max(0, targetRpm) - this.rpm) * lag(this.speedTauS);
+    return drive;
+  }
+
+  /** The water and the runner: run or stop on the flow, the head, the inverter's scans, and the power the water offers. */
+  private driveHydro({ tMs, dtS, lag }: StepClock): Drive {
+    const np = this.nameplate;
+    const available = this.weather.availableFlowFraction(tMs) * this.scenario.exposure;
+    this.hydroRunning = hydroRunsAfter(this.hydroRunning, available);
+    // The turbine takes at most its design flow; the rest spills over the weir.
+    const q = this.hydroRunning ? Math.min(1, available) * (1 + 0.01 * this.flowRipple.step(dtS)) : 0;
+    const flowM3s = q * np.designFlowM3s!;
+    // Penstock friction grows with the square of the flow; the forebay level wanders a little.
+    const headM = np.designHeadM! * (1.03 - 0.03 * q * q) * (1 + 0.002 * this.levelRipple.step(dtS));
+    // Below rated speed only while the inverter scans for its maximum power point.
+    const speedFactor = this.scenario.load === 'rectifier' ? 1 - SCAN_DEPTH * scanDepthAt(tMs, this.scanPhaseMs) : 1;
+    const eta = hydroEfficiency(np.efficiency!, q, speedFactor);
+    const kwAsked = Math.min(np.ratedKw, hydroPowerKw(flowM3s, headM, eta));
+    const ambientC = this.weather.waterC(tMs);
+    const targetRpm = this.hydroRunning ? np.ratedRpm * speedFactor * (1 + 0.003 * this.governor.step(dtS)) : 0;
+    this.rpm += (targetRpm - this.rpm) * lag(this.speedTauS);
+    return {
+      kwAsked: this.hydroRunning ? kwAsked : 0,
+      mode: this.hydroRunning ? 'generating' : 'stopped',
+      ambientC,
+      // The powerhouse air the generator breathes runs a few kelvin above the water.
+      coolantC: ambientC + 4,
+      overspeed: false,
+      water: { flowM3s, headM },
+    };
+  }
+
+  /** Terminal readings of the step; the first step starts warm, at the steady temperature of its operating point. */
+  private terminalsOfStep({ first }: StepClock, { kwAsked, coolantC }: Drive, effects: FaultEffects): TerminalReadings {
+    if (!first) return this.terminals(kwAsked, effects);
+    this.statorC = coolantC;
+    const cold = this.terminals(kwAsked, effects);
+    this.statorC = this.steadyStatorC(coolantC, cold.ia, effects);
+    return this.terminals(kwAsked, effects);
+  }
+
+  /** What really happened at the step. */
+  private truthOf(tMs: number, drive: Drive, terminals: TerminalReadings, effects: FaultEffects): UnitTruth {
+    const np = this.nameplate;
+    const { kwAsked, mode, wind, water } = drive;
+    return {
+      tMs,
+      mode: kwAsked > 0 ? 'generating' : mode === 'generating' ? 'idling' : mode,
+      rpm: this.rpm,
+      hz: terminals.hz,
+      emfLlV: terminals.emfLlV,
+      keNowVPerKrpm: this.rpm > 0 ? (terminals.emfLlV * 1000) / this.rpm : 0,
+      // The magnets sit at the stator temperature (one thermal mass).
+      magnetC: this.statorC,
+      statorC: this.statorC,
+      ohmPerPhase: copperOhmAt(np.phaseOhm, this.statorC),
+      reactanceOhm: reactanceOhm(terminals.hz, np.phaseMh),
+      powerFactor: terminals.powerFactor,
+      terminals,
+      effects,
+      coolantC: drive.coolantC,
+      ...(wind !== undefined ? { windMs: wind.windMs, rotorWindMs: this.rotorWindMs, airKgM3: wind.airKgM3 } : {}),
+      ...(water !== undefined ? { flowM3s: water.flowM3s, headM: water.headM } : {}),
+      overspeed: drive.overspeed && this.rpm > np.maxRpm,
+    };
   }
 
   private steadyStatorC(coolantC: number, currentA: number, effects: FaultEffects): number {

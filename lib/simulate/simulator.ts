@@ -5,36 +5,33 @@
  * The simulator never touches the database: what the product shows of it
  * came through the broker and the ingester.
  */
-import type { Logger } from '@/lib/log/logger';
-import { AppError } from '@/lib/errors/app-error';
 import { demoFleet } from './demo-fleet';
-import { UnitDevice, redactUrl, type CredentialsFor } from './device';
-import { liveOutage } from './faults';
-import { buildFleetModels, parseFleet, type FleetModelOptions, type SimulatedUnit } from './fleet-models';
-import type { PublishedSample } from './machine';
+import { deviceForUnit, redactUrl, type BrokerAccess } from './device';
+import { liveOutage, type FaultSettings } from './faults';
+import { buildFleetModels, checkRange, parseFleet, type FleetModelOptions } from './fleet-models';
+import {
+  createTimeouts,
+  dropOffNetwork,
+  emptyCounters,
+  liveUnitOf,
+  publishHeld,
+  takeSample,
+  type Lifecycle,
+  type LiveRun,
+  type LiveUnit,
+} from './live-unit';
 
 export { backfill, type BackfillOptions, type BackfillResult } from './backfill';
+export { MAX_UNACKED_MESSAGES } from './live-unit';
 
 /** Samples per second per unit by default. */
 export const DEFAULT_RATE_HZ = 2;
 /** Samples per message by default (a message every two seconds per unit). */
 export const DEFAULT_SAMPLES_PER_MESSAGE = 4;
-/**
- * Messages a unit keeps while the broker does not acknowledge (a logger's
- * store-and-forward memory); beyond it the oldest new data is dropped and
- * counted.
- */
-export const MAX_UNACKED_MESSAGES = 200;
 
-export interface SimulatorOptions extends FleetModelOptions {
-  brokerUrl: string;
-  log: Logger;
+export interface SimulatorOptions extends FleetModelOptions, BrokerAccess {
   rateHz?: number | undefined;
   samplesPerMessage?: number | undefined;
-  username?: string | undefined;
-  password?: string | undefined;
-  /** Each unit's own credentials (a broker that checks who publishes where); else `username`/`password` for all. */
-  credentialsFor?: CredentialsFor | undefined;
   /** Client ids are `<prefix>-<unitId>`; default `millrace-sim`. */
   clientIdPrefix?: string | undefined;
 }
@@ -42,7 +39,7 @@ export interface SimulatorOptions extends FleetModelOptions {
 /** What the simulator reports about itself. */
 export interface SimulatorState {
   /** Named so as not to clash with a health report's own `status`. */
-  lifecycle: 'running' | 'stopping' | 'stopped';
+  lifecycle: Lifecycle;
   startedAt: string;
   broker: string;
   seed: number;
@@ -68,21 +65,6 @@ export interface Simulator {
   state(): SimulatorState;
 }
 
-interface LiveUnit extends SimulatedUnit {
-  device: UnitDevice | undefined;
-  buffer: PublishedSample[];
-  timer: NodeJS.Timeout | undefined;
-  lastMs: number;
-  dropWarned: boolean;
-}
-
-function checkRange(name: string, value: number, min: number, max: number, integer = false): number {
-  if (!Number.isFinite(value) || value < min || value > max || (integer && !Number.isInteger(value))) {
-    throw new AppError('bad-input', 'simulate', `${name} must be ${integer ? 'a whole number ' : ''}from ${min} to ${max}, got ${value}`);
-  }
-  return value;
-}
-
 /**
  * Starts the live fleet; resolves once every unit is connected. A broker
  * that cannot be reached rejects with an AppError naming its URL.
@@ -96,34 +78,38 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
   const startedMs = Date.now();
   const { units: models, faults, seed } = buildFleetModels(fleet, options, startedMs);
   const prefix = options.clientIdPrefix ?? 'millrace-sim';
-  const periodMs = 1000 / rateHz;
-  const counters = { messagesSent: 0, samplesSent: 0, samplesDropped: 0, messagesFailed: 0, lastPublishMs: 0 };
-  let lifecycle: SimulatorState['lifecycle'] = 'running';
-  const timeouts = new Set<NodeJS.Timeout>();
-  const later = (ms: number, fn: () => void) => {
-    const t = setTimeout(() => {
-      timeouts.delete(t);
-      fn();
-    }, ms);
-    timeouts.add(t);
+  const timeouts = createTimeouts();
+  const run: LiveRun = {
+    log,
+    samplesPerMessage,
+    counters: emptyCounters(),
+    lifecycle: 'running',
+    later: timeouts.later,
+    newDevice: (u) => deviceForUnit(options, u.nameplate, { clientId: `${prefix}-${u.nameplate.id}`, presence: true }),
   };
+  const units = models.map(liveUnitOf);
+  await connectEvery(run, units);
+  log.info('demo fleet connected', { broker: redactUrl(brokerUrl), units: units.length, rateHz, samplesPerMessage, seed });
+  scheduleUnits(run, units, 1000 / rateHz, faults);
+  const about = { startedMs, broker: redactUrl(brokerUrl), seed, faults, rateHz, samplesPerMessage };
+  return {
+    state: () => simulatorState(run, units, about),
+    stop: async () => {
+      if (run.lifecycle !== 'running') return;
+      run.lifecycle = 'stopping';
+      timeouts.clear();
+      await closeEvery(run, units);
+      run.lifecycle = 'stopped';
+      log.info('demo fleet stopped', { messagesSent: run.counters.messagesSent, samplesSent: run.counters.samplesSent });
+    },
+  };
+}
 
-  const newDevice = (u: SimulatedUnit) =>
-    new UnitDevice({
-      brokerUrl,
-      siteId: u.nameplate.siteId,
-      unitId: u.nameplate.id,
-      clientId: `${prefix}-${u.nameplate.id}`,
-      username: options.credentialsFor?.(u.nameplate.siteId, u.nameplate.id)?.username ?? options.username,
-      password: options.credentialsFor?.(u.nameplate.siteId, u.nameplate.id)?.password ?? options.password,
-      log,
-      presence: true,
-    });
-
-  const units: LiveUnit[] = models.map((m) => ({ ...m, device: undefined, buffer: [], timer: undefined, lastMs: 0, dropWarned: false }));
+/** Connects every unit; if one cannot connect, closes those that did and rejects with its error. */
+async function connectEvery(run: LiveRun, units: readonly LiveUnit[]): Promise<void> {
   const connected = await Promise.allSettled(
     units.map(async (u) => {
-      const device = newDevice(u);
+      const device = run.newDevice(u);
       await device.connect();
       u.device = device;
     }),
@@ -133,113 +119,53 @@ export async function startSimulator(options: SimulatorOptions): Promise<Simulat
     await Promise.all(units.map((u) => u.device?.close(0)));
     throw failure.reason;
   }
-  log.info('demo fleet connected', { broker: redactUrl(brokerUrl), units: units.length, rateHz, samplesPerMessage, seed });
+}
 
-  const publish = (u: LiveUnit) => {
-    const device = u.device;
-    const samples = u.buffer;
-    u.buffer = [];
-    if (device === undefined || samples.length === 0) return;
-    if (device.inFlight >= MAX_UNACKED_MESSAGES) {
-      counters.samplesDropped += samples.length;
-      if (!u.dropWarned) {
-        u.dropWarned = true;
-        log.warn('broker not acknowledging: dropping new samples until it does', { unit: u.nameplate.id, unacked: device.inFlight });
-      }
-      return;
-    }
-    u.dropWarned = false;
-    device.publishTelemetry(JSON.stringify(samples)).then(
-      () => {
-        counters.messagesSent++;
-        counters.samplesSent += samples.length;
-        counters.lastPublishMs = Date.now();
-      },
-      (error: unknown) => {
-        counters.messagesFailed++;
-        if (lifecycle === 'running' && u.device === device) log.warn('publish failed', { unit: u.nameplate.id, samples: samples.length, error });
-      },
-    );
-  };
-
-  const tick = (u: LiveUnit) => {
-    // Timestamps strictly rise even if the clock steps back.
-    const t = Math.max(Date.now(), u.lastMs + 1);
-    u.lastMs = t;
-    const { sample } = u.model.step(t);
-    // A unit that is down logs nothing, but its machine keeps turning.
-    if (u.device === undefined) return;
-    u.buffer.push(sample);
-    if (u.buffer.length >= samplesPerMessage) publish(u);
-  };
-
-  const comeBack = (u: LiveUnit) => {
-    if (lifecycle !== 'running') return;
-    const device = newDevice(u);
-    device.connect().then(
-      () => {
-        if (lifecycle !== 'running') return void device.close(0);
-        u.device = device;
-        log.info('unit back online', { unit: u.nameplate.id });
-      },
-      (error: unknown) => {
-        log.warn('unit could not reconnect, retrying in 5 s', { unit: u.nameplate.id, error });
-        later(5000, () => comeBack(u));
-      },
-    );
-  };
-
+/** Starts each unit's sample clock, and its simulated network outage if its faults plan one. */
+function scheduleUnits(run: LiveRun, units: readonly LiveUnit[], periodMs: number, faults: FaultSettings): void {
   units.forEach((u, i) => {
     // Spread the units over one sample period so their messages do not all land at once.
-    later((i * periodMs) / units.length, () => {
-      tick(u);
-      u.timer = setInterval(() => tick(u), periodMs);
+    run.later((i * periodMs) / units.length, () => {
+      takeSample(run, u);
+      u.timer = setInterval(() => takeSample(run, u), periodMs);
     });
     const outage = liveOutage(u.scenario.faults, faults);
-    if (outage !== undefined) {
-      later(outage.afterS * 1000, () => {
-        const device = u.device;
-        if (device === undefined) return;
-        u.device = undefined;
-        u.buffer = [];
-        device.dropUnclean();
-        log.info('unit dropped off the network (simulated fault)', { unit: u.nameplate.id, backInS: outage.forS });
-        if (outage.forS !== null) later(outage.forS * 1000, () => comeBack(u));
-      });
-    }
+    if (outage !== undefined) run.later(outage.afterS * 1000, () => dropOffNetwork(run, u, outage.forS));
   });
+}
 
+/** Stops every unit's clock, publishes what each holds and closes its device (it says `offline`). */
+async function closeEvery(run: LiveRun, units: readonly LiveUnit[]): Promise<void> {
+  for (const u of units) {
+    if (u.timer !== undefined) clearInterval(u.timer);
+    publishHeld(run, u);
+  }
+  await Promise.all(units.map((u) => u.device?.close()));
+  for (const u of units) u.device = undefined;
+}
+
+/** The run's report: fixed facts of the start, then the units and counts now. */
+export function simulatorState(
+  run: Pick<LiveRun, 'lifecycle' | 'counters'>,
+  units: readonly Pick<LiveUnit, 'device' | 'nameplate'>[],
+  about: { startedMs: number; broker: string; seed: number; faults: FaultSettings; rateHz: number; samplesPerMessage: number },
+): SimulatorState {
+  const { counters } = run;
   return {
-    state: () => ({
-      lifecycle,
-      startedAt: new Date(startedMs).toISOString(),
-      broker: redactUrl(brokerUrl),
-      seed,
-      faultEpoch: new Date(faults.epochMs).toISOString(),
-      rateHz,
-      samplesPerMessage,
-      units: units.length,
-      unitsPublishing: units.filter((u) => u.device?.connected === true).length,
-      unitsOffline: units.filter((u) => u.device?.connected !== true).map((u) => u.nameplate.id),
-      messagesSent: counters.messagesSent,
-      samplesSent: counters.samplesSent,
-      samplesDropped: counters.samplesDropped,
-      messagesFailed: counters.messagesFailed,
-      lastPublishAt: counters.lastPublishMs === 0 ? null : new Date(counters.lastPublishMs).toISOString(),
-    }),
-    stop: async () => {
-      if (lifecycle !== 'running') return;
-      lifecycle = 'stopping';
-      for (const t of timeouts) clearTimeout(t);
-      timeouts.clear();
-      for (const u of units) {
-        if (u.timer !== undefined) clearInterval(u.timer);
-        publish(u);
-      }
-      await Promise.all(units.map((u) => u.device?.close()));
-      for (const u of units) u.device = undefined;
-      lifecycle = 'stopped';
-      log.info('demo fleet stopped', { messagesSent: counters.messagesSent, samplesSent: counters.samplesSent });
-    },
+    lifecycle: run.lifecycle,
+    startedAt: new Date(about.startedMs).toISOString(),
+    broker: about.broker,
+    seed: about.seed,
+    faultEpoch: new Date(about.faults.epochMs).toISOString(),
+    rateHz: about.rateHz,
+    samplesPerMessage: about.samplesPerMessage,
+    units: units.length,
+    unitsPublishing: units.filter((u) => u.device?.connected === true).length,
+    unitsOffline: units.filter((u) => u.device?.connected !== true).map((u) => u.nameplate.id),
+    messagesSent: counters.messagesSent,
+    samplesSent: counters.samplesSent,
+    samplesDropped: counters.samplesDropped,
+    messagesFailed: counters.messagesFailed,
+    lastPublishAt: counters.lastPublishMs === 0 ? null : new Date(counters.lastPublishMs).toISOString(),
   };
 }
