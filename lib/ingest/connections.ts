@@ -159,186 +159,243 @@ export interface ConnectionState {
   lastError?: string;
 }
 
-/** Opens the connections and subscribes; resolves once each has connected and subscribed, or rejects on a refusal. */
-export function openConnectionPool(options: ConnectionPoolOptions) {
-  const {
-    brokerUrl,
-    mqtt5,
-    clientId,
-    shareGroup,
-    log,
-    onDelivery,
-    sessionExpirySeconds = 7 * 86_400,
-    keepaliveSeconds = 60,
-    reconnectMs = 250,
-    maxReconnectMs = 2_000,
-  } = options;
-  const count = mqtt5 ? options.connections : 1;
-  if (!mqtt5 && options.connections > 1) {
-    log.info('an MQTT 3.1.1 broker has no shared subscriptions: one connection carries all telemetry', {
-      connectionsAsked: options.connections,
-    });
+/**
+ * Lets the event loop turn once every {@link SLICE_MS} ms of message handling
+ * (see the module comment); one for all the connections of a pool.
+ */
+export class Slicer {
+  private start: number;
+
+  constructor(
+    private readonly sliceMs = SLICE_MS,
+    private readonly clock: () => number = () => performance.now(),
+  ) {
+    this.start = clock();
   }
-  let stopping = false;
-  let brokerDown = false;
-  const states: ConnectionState[] = [];
-  const clients: MqttClient[] = [];
-  const ackLines: AckLine[] = [];
-  const readies: Array<Promise<void>> = [];
-  let sliceStart = performance.now();
+
   /** Runs `next` now, or after one turn of the event loop once this slice is used up. */
-  const inSlice = (next: () => void) => {
-    if (performance.now() - sliceStart < SLICE_MS) return next();
+  run(next: () => void): void {
+    if (this.clock() - this.start < this.sliceMs) return next();
     setImmediate(() => {
-      sliceStart = performance.now();
+      this.start = this.clock();
       next();
     });
+  }
+}
+
+/** The pool's options with their defaults filled in. */
+export type ConnectionPoolSettings = ConnectionPoolOptions & Required<Pick<ConnectionPoolOptions, 'sessionExpirySeconds' | 'keepaliveSeconds' | 'reconnectMs' | 'maxReconnectMs'>>;
+
+/** What the connections of one pool share. */
+interface PoolShared {
+  /** Set by pause or close: messages arriving from then on stay unacknowledged. */
+  stopping: boolean;
+  /** Every connection is down (logged once, and once when one is back). */
+  brokerDown: boolean;
+  readonly states: ConnectionState[];
+  readonly slicer: Slicer;
+}
+
+/** One connection of the pool. */
+interface Connection {
+  client: MqttClient;
+  acks: AckLine;
+  /** Resolves when it has connected and subscribed once; rejects when its first subscription is refused. */
+  ready: Promise<void>;
+}
+
+/** The mqtt.js options of connection `id`: a persistent session, our own resubscription and backoff. */
+export function clientOptionsOf(settings: ConnectionPoolSettings, id: string): IClientOptions {
+  const { mqtt5 } = settings;
+  return {
+    clientId: id,
+    ...mqttLog,
+    protocolVersion: mqtt5 ? 5 : 4,
+    clean: false,
+    keepalive: settings.keepaliveSeconds,
+    reconnectPeriod: settings.reconnectMs,
+    connectTimeout: 10_000,
+    resubscribe: false,
+    username: settings.username,
+    password: settings.password,
+    ...(mqtt5 ? { properties: { sessionExpiryInterval: settings.sessionExpirySeconds, receiveMaximum: 65_535 } } : {}),
   };
+}
 
-  for (let i = 0; i < count; i++) {
-    const id = `${clientId}-${i}`;
-    const state: ConnectionState = { clientId: id, connected: false, subscribed: false, reconnects: 0, paused: false };
-    states.push(state);
-    const clientOptions: IClientOptions = {
-      clientId: id,
-      ...mqttLog,
-      protocolVersion: mqtt5 ? 5 : 4,
-      clean: false,
-      keepalive: keepaliveSeconds,
-      reconnectPeriod: reconnectMs,
-      connectTimeout: 10_000,
-      resubscribe: false,
-      username: options.username,
-      password: options.password,
-      ...(mqtt5 ? { properties: { sessionExpiryInterval: sessionExpirySeconds, receiveMaximum: 65_535 } } : {}),
-    };
-    const client = mqtt.connect(brokerUrl, clientOptions);
-    clients.push(client);
-    const acks = new AckLine(client);
-    ackLines.push(acks);
+/** What connection `index` subscribes to: telemetry (shared on MQTT 5), and presence on the first only. */
+export function subscriptionFilters(index: number, mqtt5: boolean, shareGroup: string): Record<string, { qos: 1 }> {
+  const filters: Record<string, { qos: 1 }> = { [mqtt5 ? sharedTelemetryFilter(shareGroup) : TELEMETRY_FILTER]: { qos: 1 } };
+  if (index === 0) filters[PRESENCE_FILTER] = { qos: 1 };
+  return filters;
+}
 
-    client.handleMessage = (packet: IPublishPacket, callback) => {
-      if (stopping) return; // Left unacknowledged: the broker delivers it again to the next session.
-      const qos = packet.qos;
-      const delivery: Delivery = {
-        topic: packet.topic,
-        payload: Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload),
-        qos,
-        retain: packet.retain,
-        receivedAtMs: Date.now(),
-        receipt: new DeliveryReceipt(acks, client.stream, qos, packet.messageId),
-      };
-      const proceed = () => (qos > 0 ? callback(ACK_LATER) : callback());
-      let wait: void | Promise<void> = undefined;
-      try {
-        wait = onDelivery(delivery);
-      } catch (error) {
-        log.error('a message could not be taken in; it stays unacknowledged', { topic: packet.topic, error });
-      }
-      if (wait) {
-        state.paused = true;
-        wait.then(
-          () => {
-            state.paused = false;
-            if (!stopping) proceed();
-          },
-          () => {},
-        );
-      } else inSlice(proceed);
-    };
+/** The error for the subscriptions the broker refused (a granted QoS over 2 is a refusal code), or undefined. */
+export function subscriptionRefusal(granted: ReadonlyArray<{ topic: string; qos: number }>, mqtt5: boolean): Error | undefined {
+  const refused = granted.filter((g) => g.qos > 2);
+  if (refused.length === 0) return undefined;
+  return new Error(
+    `the broker refused the subscription${refused.length > 1 ? 's' : ''} ${refused.map((g) => `${g.topic} (code ${g.qos})`).join(', ')}` +
+      (mqtt5 ? '; a broker without MQTT 5 shared subscriptions (such as the embedded one) needs mqtt5 off' : ''),
+  );
+}
 
-    const subscribe = async () => {
-      const filters: Record<string, { qos: 1 }> = { [mqtt5 ? sharedTelemetryFilter(shareGroup) : TELEMETRY_FILTER]: { qos: 1 } };
-      if (i === 0) filters[PRESENCE_FILTER] = { qos: 1 };
-      const granted = await client.subscribeAsync(filters);
-      const refused = granted.filter((g) => g.qos > 2);
-      if (refused.length > 0) {
-        throw new Error(
-          `the broker refused the subscription${refused.length > 1 ? 's' : ''} ${refused.map((g) => `${g.topic} (code ${g.qos})`).join(', ')}` +
-            (mqtt5 ? '; a broker without MQTT 5 shared subscriptions (such as the embedded one) needs mqtt5 off' : ''),
-        );
-      }
-      state.subscribed = true;
-    };
-
-    readies.push(
-      new Promise<void>((resolve, reject) => {
-        let first = true;
-        client.on('connect', () => {
-          state.connected = true;
-          client.options.reconnectPeriod = reconnectMs;
-          if (brokerDown) {
-            brokerDown = false;
-            log.info('broker connection restored', { broker: brokerUrl, clientId: id });
-          }
-          subscribe().then(
-            () => {
-              if (first) {
-                first = false;
-                log.info('subscribed', { broker: brokerUrl, clientId: id, mqtt5 });
-                resolve();
-              }
-            },
-            (error) => {
-              log.error('subscription failed', { broker: brokerUrl, clientId: id, error });
-              if (first) {
-                first = false;
-                reject(error);
-              }
-            },
-          );
-        });
-      }),
-    );
-    client.on('reconnect', () => {
-      state.reconnects++;
-      client.options.reconnectPeriod = Math.min(maxReconnectMs, (client.options.reconnectPeriod ?? reconnectMs) * 2);
-    });
-    client.on('close', () => {
-      const was = state.connected;
-      state.connected = false;
-      state.subscribed = false;
-      if (was) options.onConnectionClosed?.();
-      if (!stopping && !brokerDown && !states.some((s) => s.connected)) {
-        brokerDown = true;
-        log.warn('broker unreachable; reconnecting with backoff', { broker: brokerUrl, error: state.lastError });
-      }
-    });
-    client.on('error', (error) => {
-      state.lastError = error.message;
-      log.debug('broker connection error', { clientId: id, error });
+/** Opens the connections and subscribes; resolves once each has connected and subscribed, or rejects on a refusal. */
+export function openConnectionPool(options: ConnectionPoolOptions) {
+  const settings: ConnectionPoolSettings = {
+    ...options,
+    sessionExpirySeconds: options.sessionExpirySeconds ?? 7 * 86_400,
+    keepaliveSeconds: options.keepaliveSeconds ?? 60,
+    reconnectMs: options.reconnectMs ?? 250,
+    maxReconnectMs: options.maxReconnectMs ?? 2_000,
+  };
+  const count = settings.mqtt5 ? settings.connections : 1;
+  if (!settings.mqtt5 && settings.connections > 1) {
+    settings.log.info('an MQTT 3.1.1 broker has no shared subscriptions: one connection carries all telemetry', {
+      connectionsAsked: settings.connections,
     });
   }
+  const shared: PoolShared = { stopping: false, brokerDown: false, states: [], slicer: new Slicer() };
+  const connections: Connection[] = [];
+  for (let i = 0; i < count; i++) connections.push(openConnection(settings, shared, i));
 
   return {
     /** Resolves when every connection has connected and subscribed once. */
-    ready: () => Promise.all(readies).then(() => undefined),
-    states: () => states.map((s) => ({ ...s })),
+    ready: () => Promise.all(connections.map((c) => c.ready)).then(() => undefined),
+    states: () => shared.states.map((s) => ({ ...s })),
     /** Stops taking messages: anything arriving from now on stays unacknowledged. */
     pause() {
-      stopping = true;
+      shared.stopping = true;
     },
     /** Sends what is queued (the last PUBACKs) and disconnects, keeping the sessions. */
     async close({ force = false }: { force?: boolean } = {}) {
-      stopping = true;
-      if (!force) for (const line of ackLines) line.flush();
-      await Promise.all(
-        clients.map(
-          (c) =>
-            new Promise<void>((resolve) => {
-              const timer = setTimeout(() => {
-                c.end(true, () => resolve());
-              }, 3000);
-              timer.unref();
-              c.end(force, () => {
-                clearTimeout(timer);
-                resolve();
-              });
-            }),
-        ),
-      );
+      shared.stopping = true;
+      if (!force) for (const c of connections) c.acks.flush();
+      await Promise.all(connections.map((c) => endClient(c.client, force)));
     },
   };
 }
 
 export type ConnectionPool = ReturnType<typeof openConnectionPool>;
+
+/** Connection `index` of the pool: connects, takes its messages, subscribes on each connect, reconnects with backoff. */
+function openConnection(settings: ConnectionPoolSettings, shared: PoolShared, index: number): Connection {
+  const id = `${settings.clientId}-${index}`;
+  const state: ConnectionState = { clientId: id, connected: false, subscribed: false, reconnects: 0, paused: false };
+  shared.states.push(state);
+  const client = mqtt.connect(settings.brokerUrl, clientOptionsOf(settings, id));
+  const acks = new AckLine(client);
+  client.handleMessage = messageHandler(settings, shared, state, client, acks);
+  const ready = subscribeOnConnect(settings, shared, state, client, index);
+  client.on('reconnect', () => {
+    state.reconnects++;
+    client.options.reconnectPeriod = Math.min(settings.maxReconnectMs, (client.options.reconnectPeriod ?? settings.reconnectMs) * 2);
+  });
+  client.on('close', () => {
+    const was = state.connected;
+    state.connected = false;
+    state.subscribed = false;
+    if (was) settings.onConnectionClosed?.();
+    if (!shared.stopping && !shared.brokerDown && !shared.states.some((s) => s.connected)) {
+      shared.brokerDown = true;
+      settings.log.warn('broker unreachable; reconnecting with backoff', { broker: settings.brokerUrl, error: state.lastError });
+    }
+  });
+  client.on('error', (error) => {
+    state.lastError = error.message;
+    settings.log.debug('broker connection error', { clientId: id, error });
+  });
+  return { client, acks, ready };
+}
+
+/**
+ * The connection's message handler: hands each delivery over and calls
+ * mqtt.js back at once (with the marker for QoS > 0, see the module
+ * comment), or, when the delivery asks to wait, once it may read again.
+ */
+function messageHandler(settings: ConnectionPoolSettings, shared: PoolShared, state: ConnectionState, client: MqttClient, acks: AckLine): MqttClient['handleMessage'] {
+  return (packet: IPublishPacket, callback) => {
+    if (shared.stopping) return; // Left unacknowledged: the broker delivers it again to the next session.
+    const qos = packet.qos;
+    const delivery: Delivery = {
+      topic: packet.topic,
+      payload: Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload),
+      qos,
+      retain: packet.retain,
+      receivedAtMs: Date.now(),
+      receipt: new DeliveryReceipt(acks, client.stream, qos, packet.messageId),
+    };
+    const proceed = () => (qos > 0 ? callback(ACK_LATER) : callback());
+    let wait: void | Promise<void> = undefined;
+    try {
+      wait = settings.onDelivery(delivery);
+    } catch (error) {
+      settings.log.error('a message could not be taken in; it stays unacknowledged', { topic: packet.topic, error });
+    }
+    if (wait) {
+      state.paused = true;
+      wait.then(
+        () => {
+          state.paused = false;
+          if (!shared.stopping) proceed();
+        },
+        () => {},
+      );
+    } else shared.slicer.run(proceed);
+  };
+}
+
+/**
+ * Subscribes on every connect (the broker may have lost the subscription
+ * with a restart); resolves after the first subscription, or rejects when
+ * the first is refused. Later refusals are only logged.
+ */
+function subscribeOnConnect(settings: ConnectionPoolSettings, shared: PoolShared, state: ConnectionState, client: MqttClient, index: number): Promise<void> {
+  const { brokerUrl, mqtt5, log } = settings;
+  const subscribe = async () => {
+    const granted = await client.subscribeAsync(subscriptionFilters(index, mqtt5, settings.shareGroup));
+    const refusal = subscriptionRefusal(granted, mqtt5);
+    if (refusal) throw refusal;
+    state.subscribed = true;
+  };
+  return new Promise<void>((resolve, reject) => {
+    let first = true;
+    client.on('connect', () => {
+      state.connected = true;
+      client.options.reconnectPeriod = settings.reconnectMs;
+      if (shared.brokerDown) {
+        shared.brokerDown = false;
+        log.info('broker connection restored', { broker: brokerUrl, clientId: state.clientId });
+      }
+      subscribe().then(
+        () => {
+          if (first) {
+            first = false;
+            log.info('subscribed', { broker: brokerUrl, clientId: state.clientId, mqtt5 });
+            resolve();
+          }
+        },
+        (error) => {
+          log.error('subscription failed', { broker: brokerUrl, clientId: state.clientId, error });
+          if (first) {
+            first = false;
+            reject(error);
+          }
+        },
+      );
+    });
+  });
+}
+
+/** Disconnects `client` (at once with `force`), forcing it after 3 s. */
+function endClient(client: MqttClient, force: boolean): Promise<void> {
+  return new Promise<void>((resolve) => {
+    const timer = setTimeout(() => {
+      client.end(true, () => resolve());
+    }, 3000);
+    timer.unref();
+    client.end(force, () => {
+      clearTimeout(timer);
+      resolve();
+    });
+  });
+}
