@@ -1,7 +1,7 @@
 import type { PersonScreen } from '@/lib/people/screen';
-import styles from '@/app/account/account.module.css';
 import { createDisplayLinkAction, revokeDisplayLinkAction } from '@/app/admin/actions';
-import { ButtonForm, NameForm } from '@/app/admin/_components/forms';
+import { NameForm } from '@/app/admin/_components/forms';
+import { CredentialTable, RevokeCell } from './credential-table';
 import { When } from './when';
 
 /** The wall-screen links this person made, and (for an administrator) a form to make one. */
@@ -11,30 +11,18 @@ export function DisplayLinksPanel({ personId, links, scopes }: { personId: numbe
       <h2 id="links-heading">Display links made by this person</h2>
       <p className="note">A wall screen opens the link and shows one site or the fleet, read only, with no sign-in and nothing else. Anyone with the link sees it: revoke it when a screen goes.</p>
       {links.length ? (
-        <div className="table-scroll">
-          <table>
-            <thead>
-              <tr>
-                <th scope="col">Name</th>
-                <th scope="col">Shows</th>
-                <th scope="col">Last used</th>
-                <th scope="col">State</th>
-              </tr>
-            </thead>
-            <tbody>
-              {links.map((l) => (
-                <tr key={l.id}>
-                  <td>{l.name}</td>
-                  <td>{l.siteId ? <span className="unit-id">{l.siteId}</span> : 'the fleet'}</td>
-                  <td>
-                    <When at={l.lastUsed} />
-                  </td>
-                  <td>{l.revoked ? <span className={styles.disabledTag}>⊘ revoked</span> : <ButtonForm action={revokeDisplayLinkAction.bind(null, l.id)} label="Revoke" />}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <CredentialTable headings={['Name', 'Shows', 'Last used', 'State']}>
+          {links.map((l) => (
+            <tr key={l.id}>
+              <td>{l.name}</td>
+              <td>{l.siteId ? <span className="unit-id">{l.siteId}</span> : 'the fleet'}</td>
+              <td>
+                <When at={l.lastUsed} />
+              </td>
+              <RevokeCell revoked={l.revoked} action={revokeDisplayLinkAction.bind(null, l.id)} />
+            </tr>
+          ))}
+        </CredentialTable>
       ) : (
         <p>No display links.</p>
       )}

@@ -1,7 +1,7 @@
 import type { PersonToken } from '@/lib/people/screen';
-import styles from '@/app/account/account.module.css';
 import { createTokenAction, revokeTokenAction } from '@/app/admin/actions';
-import { ButtonForm, NameForm } from '@/app/admin/_components/forms';
+import { NameForm } from '@/app/admin/_components/forms';
+import { CredentialTable, RevokeCell } from './credential-table';
 import { When } from './when';
 
 /** The person's API tokens: made, last used, revoke; and a form to make one (shown once). */
@@ -14,38 +14,20 @@ export function TokensPanel({ personId, tokens }: { personId: number; tokens: re
         only as a hash.
       </p>
       {tokens.length ? (
-        <div className="table-scroll">
-          <table>
-            <thead>
-              <tr>
-                <th scope="col">Name</th>
-                <th scope="col">Made</th>
-                <th scope="col">Last used</th>
-                <th scope="col">State</th>
-              </tr>
-            </thead>
-            <tbody>
-              {tokens.map((t) => (
-                <tr key={t.id}>
-                  <td>{t.name}</td>
-                  <td>
-                    <When at={t.made} />
-                  </td>
-                  <td>
-                    <When at={t.lastUsed} />
-                  </td>
-                  <td>
-                    {t.revoked ? (
-                      <span className={styles.disabledTag}>⊘ revoked</span>
-                    ) : (
-                      <ButtonForm action={revokeTokenAction.bind(null, personId, t.id)} label="Revoke" />
-                    )}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <CredentialTable headings={['Name', 'Made', 'Last used', 'State']}>
+          {tokens.map((t) => (
+            <tr key={t.id}>
+              <td>{t.name}</td>
+              <td>
+                <When at={t.made} />
+              </td>
+              <td>
+                <When at={t.lastUsed} />
+              </td>
+              <RevokeCell revoked={t.revoked} action={revokeTokenAction.bind(null, personId, t.id)} />
+            </tr>
+          ))}
+        </CredentialTable>
       ) : (
         <p>No tokens.</p>
       )}
