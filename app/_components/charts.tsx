@@ -17,10 +17,8 @@ import {
   XAxis,
   YAxis,
 } from 'recharts';
-import { seriesStyle } from './chart-style';
+import { CHART_STYLE as S, seriesStyle } from './chart-style';
 
-const ALARM = '#b0241c';
-const WARN = '#8a5000';
 const AXIS = { stroke: '#545d63', fontSize: 12 } as const;
 
 function timeTick(timeZone: string, spanMs: number) {
@@ -66,10 +64,10 @@ export function EmfScatter({
               { x: 0, y: 0 },
               { x: topRpm, y: lineV(topRpm) },
             ]}
-            stroke="#1b2429"
-            strokeWidth={2}
+            stroke={S.nameplateLine.color}
+            strokeWidth={S.nameplateLine.width}
             ifOverflow="extendDomain"
-            label={{ value: `nameplate at ${magnetC.toFixed(0)} °C`, position: 'insideTopLeft', fill: '#1b2429', fontSize: 12 }}
+            label={{ value: `nameplate at ${magnetC.toFixed(0)} °C`, position: 'insideTopLeft', fill: S.nameplateLine.color, fontSize: 12 }}
           />
           <ReferenceLine
             className="alarm-line"
@@ -77,13 +75,13 @@ export function EmfScatter({
               { x: 0, y: 0 },
               { x: topRpm, y: lineV(topRpm) * alarmRatio },
             ]}
-            stroke={ALARM}
-            strokeDasharray="6 4"
-            strokeWidth={1.5}
-            label={{ value: `alarm line ${alarmRatio}`, position: 'insideBottomRight', fill: ALARM, fontSize: 12 }}
+            stroke={S.emfAlarmLine.color}
+            strokeDasharray={S.emfAlarmLine.dash}
+            strokeWidth={S.emfAlarmLine.width}
+            label={{ value: `alarm line ${alarmRatio}`, position: 'insideBottomRight', fill: S.emfAlarmLine.color, fontSize: 12 }}
           />
-          <Scatter name="Terminal voltage (as measured)" data={terminal} fill="none" stroke="#545d63" shape="circle" isAnimationActive={false} />
-          <Scatter name="EMF corrected for load and temperature" data={corrected} fill="#1a5fd0" shape="triangle" isAnimationActive={false} />
+          <Scatter name="Terminal voltage (as measured)" data={terminal} fill="none" stroke={S.emfTerminal.color} shape="circle" isAnimationActive={false} />
+          <Scatter name="EMF corrected for load and temperature" data={corrected} fill={S.emfCorrected.color} shape="triangle" isAnimationActive={false} />
         </ComposedChart>
       </ResponsiveContainer>
     </div>
@@ -120,10 +118,10 @@ export function KeTrendChart({
           <XAxis type="number" dataKey="t" scale="time" domain={[fromMs, toMs]} tickFormatter={timeTick(timeZone, toMs - fromMs)} tick={AXIS} label={{ value: 'Date (site time)', position: 'insideBottom', offset: -16, fill: '#1b2429' }} />
           <YAxis type="number" domain={[Math.floor((yMin - 0.005) * 100) / 100, Math.ceil((yMax + 0.005) * 100) / 100]} tick={AXIS} width={66} tickFormatter={(v: number) => v.toFixed(2)} label={{ value: 'Ke ratio (of nameplate)', angle: -90, position: 'insideLeft', fill: '#1b2429', style: { textAnchor: 'middle' } }} />
           <Tooltip labelFormatter={fullTime(timeZone)} formatter={(v) => (Array.isArray(v) ? v.map((x) => Number(x).toFixed(3)).join('–') : Number(v).toFixed(3))} />
-          <ReferenceLine y={warn} stroke={WARN} strokeDasharray="6 3" strokeWidth={1.5} label={{ value: `warning ${warn}`, position: 'insideTopRight', fill: WARN, fontSize: 12 }} />
-          <ReferenceLine y={alarm} stroke={ALARM} strokeWidth={2} label={{ value: `alarm ${alarm}`, position: 'insideBottomRight', fill: ALARM, fontSize: 12 }} />
-          <Area name="95 % interval" dataKey="band" fill="#c9ccc6" stroke="none" fillOpacity={0.7} isAnimationActive={false} />
-          <Line name="Daily median Ke ratio" dataKey="ke" stroke="#1b2429" strokeWidth={2} dot={{ r: 2.5, fill: '#1b2429' }} isAnimationActive={false} />
+          <ReferenceLine y={warn} stroke={S.keWarnLine.color} strokeDasharray={S.keWarnLine.dash} strokeWidth={S.keWarnLine.width} label={{ value: `warning ${warn}`, position: 'insideTopRight', fill: S.keWarnLine.color, fontSize: 12 }} />
+          <ReferenceLine y={alarm} stroke={S.keAlarmLine.color} strokeWidth={S.keAlarmLine.width} label={{ value: `alarm ${alarm}`, position: 'insideBottomRight', fill: S.keAlarmLine.color, fontSize: 12 }} />
+          <Area name="95 % interval" dataKey="band" fill={S.keInterval.color} stroke="none" fillOpacity={0.7} isAnimationActive={false} />
+          <Line name="Daily median Ke ratio" dataKey="ke" stroke={S.keMedian.color} strokeWidth={S.keMedian.width} dot={{ r: 2.5, fill: S.keMedian.color }} isAnimationActive={false} />
           {projection ? (
             <ReferenceLine
               className="projection-line"
@@ -131,16 +129,16 @@ export function KeTrendChart({
                 { x: projection.fromT, y: projection.level },
                 { x: projection.crossT, y: alarm },
               ]}
-              stroke="#1a5fd0"
-              strokeDasharray="8 4"
-              strokeWidth={2}
+              stroke={S.keProjection.color}
+              strokeDasharray={S.keProjection.dash}
+              strokeWidth={S.keProjection.width}
             />
           ) : null}
           {projection?.earliestT ? (
-            <ReferenceLine segment={[{ x: projection.fromT, y: projection.level }, { x: projection.earliestT, y: alarm }]} stroke="#1a5fd0" strokeDasharray="2 3" strokeWidth={1.5} />
+            <ReferenceLine segment={[{ x: projection.fromT, y: projection.level }, { x: projection.earliestT, y: alarm }]} stroke={S.keProjectionInterval.color} strokeDasharray={S.keProjectionInterval.dash} strokeWidth={S.keProjectionInterval.width} />
           ) : null}
           {projection?.latestT ? (
-            <ReferenceLine segment={[{ x: projection.fromT, y: projection.level }, { x: projection.latestT, y: alarm }]} stroke="#1a5fd0" strokeDasharray="2 3" strokeWidth={1.5} />
+            <ReferenceLine segment={[{ x: projection.fromT, y: projection.level }, { x: projection.latestT, y: alarm }]} stroke={S.keProjectionInterval.color} strokeDasharray={S.keProjectionInterval.dash} strokeWidth={S.keProjectionInterval.width} />
           ) : null}
         </ComposedChart>
       </ResponsiveContainer>
@@ -148,7 +146,7 @@ export function KeTrendChart({
   );
 }
 
-/** One time chart: a mean line per series and, where buckets hold many samples, the min–max band of the first (its legend is drawn by the page). */
+/** One time chart: a mean line per series and, where buckets hold many samples, the min–max band of the first (its legend is drawn by the panel). */
 export function SeriesChart({
   rows,
   series,
@@ -177,7 +175,7 @@ export function SeriesChart({
           <XAxis type="number" dataKey="t" scale="time" domain={[fromMs, toMs]} tickFormatter={timeTick(timeZone, toMs - fromMs)} tick={AXIS} label={{ value: 'Site time', position: 'insideBottom', offset: -12, fill: '#1b2429', fontSize: 12 }} />
           <YAxis type="number" domain={['auto', 'auto']} tick={AXIS} width={60} label={{ value: unit, angle: -90, position: 'insideLeft', fill: '#1b2429', style: { textAnchor: 'middle' } }} />
           <Tooltip labelFormatter={fullTime(timeZone)} formatter={(v) => (Array.isArray(v) ? v.map((x) => Number(x).toFixed(1)).join('–') : Number(v).toFixed(2))} />
-          {band ? <Area name="min–max" dataKey={band} fill="#d9dbd6" stroke="none" isAnimationActive={false} connectNulls /> : null}
+          {band ? <Area name="min–max" dataKey={band} fill={S.minMax.color} stroke="none" isAnimationActive={false} connectNulls /> : null}
           {series.map((s, i) => {
             const style = seriesStyle(i);
             return (

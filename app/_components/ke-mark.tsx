@@ -1,3 +1,4 @@
+import { CHART_STYLE } from './chart-style';
 import { formatRatio } from './format';
 
 /** Scale of the mark: corrected Ke ratios from 0.90 to 1.05 of nameplate. */
@@ -41,8 +42,8 @@ export function KeMark({
       </span>
       <svg className="ke-scale" width={W} height={H} viewBox={`0 0 ${W} ${H}`} role="img" aria-label={`Ke ratio ${formatRatio(ratio)}, ${where}`}>
         <line x1="0" y1={H / 2} x2={W} y2={H / 2} stroke="#8a9196" strokeWidth="1" />
-        <line x1={x(alarm)} y1="0" x2={x(alarm)} y2={H} stroke="#b0241c" strokeWidth="2" />
-        <line x1={x(warn)} y1="2" x2={x(warn)} y2={H - 2} stroke="#8a5000" strokeWidth="2" strokeDasharray="2 1.5" />
+        <line x1={x(alarm)} y1="0" x2={x(alarm)} y2={H} stroke={CHART_STYLE.keAlarmLine.color} strokeWidth="2" />
+        <line x1={x(warn)} y1="2" x2={x(warn)} y2={H - 2} stroke={CHART_STYLE.keWarnLine.color} strokeWidth="2" strokeDasharray="2 1.5" />
         <line x1={x(1)} y1="4" x2={x(1)} y2={H - 4} stroke="#545d63" strokeWidth="1" />
         {low !== null && high !== null ? <rect x={x(low)} y={H / 2 - 2.5} width={Math.max(1.5, x(high) - x(low))} height="5" fill="#545d63" opacity="0.55" /> : null}
         <circle cx={x(ratio)} cy={H / 2} r="3.2" fill="#1b2429" />

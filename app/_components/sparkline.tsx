@@ -1,3 +1,4 @@
+import { CHART_STYLE } from './chart-style';
 import { formatNumber } from './format';
 
 const W = 120;
@@ -32,12 +33,12 @@ export function Sparkline({ points, fromMs, toMs, ratedKw, hours }: { points: Ar
   const label = `Power over the last ${hours} h: latest ${formatNumber(last.kw, 1, 'kW')}, peak ${formatNumber(peak, 1, 'kW')}, rated ${formatNumber(ratedKw, 0, 'kW')}`;
   return (
     <svg className="sparkline" width={W} height={H} viewBox={`0 0 ${W} ${H}`} role="img" aria-label={label}>
-      <line x1="0" y1={sy(ratedKw)} x2={W} y2={sy(ratedKw)} stroke="#d5d6d2" strokeWidth="1" strokeDasharray="3 2" />
+      <line x1="0" y1={sy(ratedKw)} x2={W} y2={sy(ratedKw)} stroke={CHART_STYLE.sparkRated.color} strokeWidth={CHART_STYLE.sparkRated.width} strokeDasharray={CHART_STYLE.sparkRated.dash} />
       {runs.map((r, i) =>
         r.includes(' ') ? (
-          <polyline key={i} points={r} fill="none" stroke="#1a4a80" strokeWidth="1.6" strokeLinejoin="round" />
+          <polyline key={i} points={r} fill="none" stroke={CHART_STYLE.sparkPower.color} strokeWidth={CHART_STYLE.sparkPower.width} strokeLinejoin="round" />
         ) : (
-          <circle key={i} cx={r.split(',')[0]} cy={r.split(',')[1]} r="1.6" fill="#1a4a80" />
+          <circle key={i} cx={r.split(',')[0]} cy={r.split(',')[1]} r="1.6" fill={CHART_STYLE.sparkPower.color} />
         ),
       )}
     </svg>

@@ -1,11 +1,14 @@
 /**
- * What the unit screen reads, in one call: the unit, its evidence (voltage
- * against speed), its Ke history and trend, and the time series of the range asked.
+ * The unit screen in one call: the unit, its evidence (voltage against speed),
+ * its Ke history and trend, and the time series of the range asked, read by
+ * the unit queries and turned into the panels' view model (view-model.ts).
  */
 import { z } from 'zod';
-import { getDatabase, type Db } from '@/db/client';
-import { currentViewer, type Viewer } from '@/lib/auth/viewer';
+import type { Db } from '@/db/client';
+import type { Viewer } from '@/lib/auth/viewer';
 import { SLUG } from '@/lib/contract/nameplate';
+import { requestContext } from '@/lib/request/context';
+import type { KeTrend } from '@/lib/diagnosis/trend';
 import {
   getUnitEmfView,
   getUnitKeHistory,
@@ -18,16 +21,35 @@ import {
   type UnitSeries,
   type UnitView,
 } from './queries';
-import type { KeTrend } from '@/lib/diagnosis/trend';
+import {
+  emfPanelView,
+  findingsView,
+  kePanelView,
+  nameplateView,
+  seriesPanelView,
+  unitHeadView,
+  type EmfPanelView,
+  type FindingsView,
+  type KePanelView,
+  type NameplateView,
+  type SeriesPanelView,
+  type UnitHeadView,
+} from './view-model';
 
+/** The unit screen's view model: plain data, every number binned and every text chosen. */
 export interface UnitScreen {
-  readonly view: UnitView;
-  readonly emf: UnitEmfView;
-  readonly ke: { days: KeDay[]; trend: KeTrend; fromMs: number };
-  readonly series: UnitSeries;
-  /** A range parameter that could not be used, naming it. */
-  readonly problem: string | undefined;
   readonly nowMs: number;
+  /** The site's zone, in which every time on the screen is shown. */
+  readonly timeZone: string;
+  readonly site: { readonly id: string; readonly name: string };
+  /** The unit's id and its name (null when it has none). */
+  readonly unit: { readonly id: string; readonly name: string | null };
+  readonly head: UnitHeadView;
+  readonly findings: FindingsView;
+  readonly emf: EmfPanelView;
+  readonly ke: KePanelView;
+  readonly series: SeriesPanelView;
+  readonly nameplate: NameplateView;
 }
 
 const rangeSchema = z.enum(SERIES_RANGE_KEYS as [SeriesRange, ...SeriesRange[]]);
@@ -35,14 +57,23 @@ const rangeSchema = z.enum(SERIES_RANGE_KEYS as [SeriesRange, ...SeriesRange[]])
 /** Default range of the time charts. */
 export const DEFAULT_RANGE: SeriesRange = '6h';
 
-/** The unit screen for the viewer; undefined when there is no such unit on that site or the viewer may not see it. */
-export async function loadUnitScreen(siteId: string, unitId: string, rangeParam: string | string[] | undefined): Promise<UnitScreen | undefined> {
-  if (!SLUG.test(siteId) || !SLUG.test(unitId)) return undefined;
-  const { db } = await getDatabase();
-  return readUnitScreen({ db, viewer: await currentViewer(), siteId, unitId, rangeParam, nowMs: Date.now() });
+/** The range asked for, or the default and a sentence saying why the one asked could not be used. */
+export function parseRange(rangeParam: string | string[] | undefined): { range: SeriesRange; problem: string | undefined } {
+  const raw = Array.isArray(rangeParam) ? rangeParam[0] : rangeParam;
+  const parsed = raw === undefined || raw === '' ? undefined : rangeSchema.safeParse(raw);
+  if (parsed === undefined) return { range: DEFAULT_RANGE, problem: undefined };
+  if (parsed.success) return { range: parsed.data, problem: undefined };
+  return { range: DEFAULT_RANGE, problem: `range: "${String(raw).slice(0, 40)}" is not one of ${SERIES_RANGE_KEYS.join(', ')}; showing ${DEFAULT_RANGE}` };
 }
 
-/** The unit screen's data; the bench times exactly this. */
+/** The unit screen for this request's viewer; undefined when there is no such unit on that site or the viewer may not see it. */
+export async function loadUnitScreen({ siteId, unitId, range }: { siteId: string; unitId: string; range: string | string[] | undefined }): Promise<UnitScreen | undefined> {
+  if (!SLUG.test(siteId) || !SLUG.test(unitId)) return undefined;
+  const { db, viewer, nowMs } = await requestContext();
+  return readUnitScreen({ db, viewer, siteId, unitId, rangeParam: range, nowMs });
+}
+
+/** The unit screen's view model; the page and the bench share exactly this. */
 export async function readUnitScreen({
   db,
   viewer,
@@ -60,15 +91,42 @@ export async function readUnitScreen({
 }): Promise<UnitScreen | undefined> {
   const view = await getUnitView({ db, viewer, siteId, unitId, nowMs });
   if (view === undefined) return undefined;
-  const raw = Array.isArray(rangeParam) ? rangeParam[0] : rangeParam;
-  const parsed = raw === undefined || raw === '' ? undefined : rangeSchema.safeParse(raw);
-  const range = parsed?.success ? parsed.data : DEFAULT_RANGE;
-  const problem =
-    parsed !== undefined && !parsed.success ? `range: "${String(raw).slice(0, 40)}" is not one of ${SERIES_RANGE_KEYS.join(', ')}; showing ${DEFAULT_RANGE}` : undefined;
+  const { range, problem } = parseRange(rangeParam);
   const [emf, ke, series] = await Promise.all([
     getUnitEmfView({ db, view, nowMs }),
     getUnitKeHistory({ db, view, nowMs }),
     getUnitSeries({ db, viewer, siteId, unitId, range, nowMs }),
   ]);
-  return { view, emf, ke, series: series as UnitSeries, problem, nowMs };
+  // The unit was just found for this viewer, so its series are there too.
+  return unitScreenOf({ view, emf, ke, series: series as UnitSeries, problem, nowMs });
+}
+
+/** The view model from what the unit queries read: pure, so the panels' words and numbers are tested without a database. */
+export function unitScreenOf({
+  view,
+  emf,
+  ke,
+  series,
+  problem,
+  nowMs,
+}: {
+  view: UnitView;
+  emf: UnitEmfView;
+  ke: { days: readonly KeDay[]; trend: KeTrend };
+  series: UnitSeries;
+  problem: string | undefined;
+  nowMs: number;
+}): UnitScreen {
+  return {
+    nowMs,
+    timeZone: view.site.timezone,
+    site: { id: view.site.id, name: view.site.name },
+    unit: { id: view.unit.id, name: view.unit.name },
+    head: unitHeadView(view, nowMs),
+    findings: findingsView(view, nowMs),
+    emf: emfPanelView(view, emf),
+    ke: kePanelView(view, ke, nowMs),
+    series: seriesPanelView(view, series, problem),
+    nameplate: nameplateView(view),
+  };
 }
