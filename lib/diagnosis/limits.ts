@@ -73,3 +73,12 @@ export function resolveLimits(nameplateLimits?: DiagnosisLimits, override?: Diag
   }
   return merged;
 }
+
+/**
+ * Whether a line-voltage unbalance is past the unit's alarm line (contract section 5: above, not at).
+ * The verdict, the shorted-turns finding and the site table all ask this one question.
+ * @example unbalanceIsAlarm(2.3, DEFAULT_LIMITS) // true
+ */
+export function unbalanceIsAlarm(pct: number | null | undefined, limits: Pick<ResolvedLimits, 'unbalanceAlarmPct'>): boolean {
+  return pct !== null && pct !== undefined && pct > limits.unbalanceAlarmPct;
+}

@@ -102,7 +102,8 @@ export interface SampleWindow {
   readonly toMs: number;
 }
 
-interface SampleRow {
+/** A row of the sample-window query, as the database returns it. */
+interface SampleWindowRow {
   unit_key: number;
   ts_ms: number | string;
   rpm: number | null;
@@ -135,7 +136,7 @@ export async function getSampleWindowsByUnitKeys({
   if (!Number.isInteger(maxSamples) || maxSamples < 1) throw new RangeError(`maxSamples must be a whole number of at least 1, got ${maxSamples}`);
   const result = new Map<number, SampleColumns>();
   if (windows.length === 0) return result;
-  const rows = rowsOf<SampleRow>(
+  const rows = rowsOf<SampleWindowRow>(
     await db.execute(sql`
       select w.k as unit_key, (extract(epoch from t.ts) * 1000)::float8 as ts_ms,
              t.rpm, t.hz, t.vab, t.vbc, t.vca, t.ia, t.ib, t.ic, t.kw, t.stator_c, t.ambient_c
@@ -155,7 +156,7 @@ export async function getSampleWindowsByUnitKeys({
   for (const [key, count] of counts) result.set(key, new SampleColumns(count));
   // Rows come newest first; walking them backwards stores each unit in time order.
   for (let i = rows.length - 1; i >= 0; i--) {
-    const r = rows[i] as SampleRow;
+    const r = rows[i] as SampleWindowRow;
     (result.get(Number(r.unit_key)) as SampleColumns).push({
       ts: Number(r.ts_ms),
       rpm: r.rpm,

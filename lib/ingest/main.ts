@@ -10,7 +10,7 @@ import { getConfig } from '@/lib/config/env';
 import { createLogger } from '@/lib/log/logger';
 import { heapProblem } from './heap';
 import { startIngester } from './ingester';
-import { startLiveDiagnosis } from '@/lib/diagnosis/live';
+import { startDiagnosisWorker } from '@/lib/diagnosis/worker';
 import { createLivePublisher } from '@/lib/live/publisher';
 
 async function main(): Promise<number> {
@@ -55,7 +55,7 @@ async function main(): Promise<number> {
   });
   // The live diagnosis runs beside the ingester in production (docker-compose
   // has no service of its own for it): it reads what the ingester committed.
-  const stopDiagnosis = startLiveDiagnosis({
+  const stopDiagnosis = startDiagnosisWorker({
     db: handle.db,
     intervalS: config.DIAGNOSIS_INTERVAL_S,
     windowHours: config.DIAGNOSIS_WINDOW_HOURS,

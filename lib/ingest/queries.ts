@@ -32,8 +32,12 @@ export interface SampleRow {
   sample: TelemetrySample;
 }
 
-/** Rows as whole columns: unit keys, times (epoch ms), then one array per value field (null where absent). */
-export interface SampleColumns {
+/**
+ * Rows as whole columns, the array parameters of the insert statement: unit
+ * keys, times (epoch ms), then one array per value field (null where absent).
+ * Not the diagnosis's SampleColumns store (one unit's samples in typed arrays).
+ */
+export interface SampleInsertColumns {
   unitKeys: number[];
   ts: number[];
   values: Array<Array<number | null>>;
@@ -43,7 +47,7 @@ export interface SampleColumns {
  * Inserts the rows, ignoring any (unit, ts) already stored; returns the keys
  * of the rows actually inserted.
  */
-export async function insertSampleColumns({ tx, columns }: { tx: SqlRunner; columns: SampleColumns }): Promise<Array<{ unitKey: number; ts: number }>> {
+export async function insertSampleColumns({ tx, columns }: { tx: SqlRunner; columns: SampleInsertColumns }): Promise<Array<{ unitKey: number; ts: number }>> {
   if (columns.unitKeys.length === 0) return [];
   const inserted = await tx.query<{ unit_key: number; t: number }>(INSERT_SAMPLES, [columns.unitKeys, columns.ts, ...columns.values]);
   return inserted.map((r) => ({ unitKey: Number(r.unit_key), ts: Number(r.t) }));
@@ -175,9 +179,9 @@ export async function writeNewSamples({ tx, rows, byInsert = false }: { tx: SqlR
 }
 
 /** The rows as whole columns, in block order (null where a value is absent). */
-function columnsOfRefs(rows: SampleRowRefs): SampleColumns {
+function columnsOfRefs(rows: SampleRowRefs): SampleInsertColumns {
   const n = rows.count;
-  const columns: SampleColumns = { unitKeys: new Array(n), ts: new Array(n), values: [] };
+  const columns: SampleInsertColumns = { unitKeys: new Array(n), ts: new Array(n), values: [] };
   for (let f = 0; f < BLOCK_WIDTH; f++) columns.values.push(new Array<number | null>(n));
   for (let r = 0; r < n; r++) {
     const block = rows.blocks[r]!;

@@ -60,6 +60,16 @@ export function recoverPhaseEmfFast(phaseVolts: number, currentA: number, ohmPer
 }
 
 /**
+ * Open-circuit line EMF behind line terminals in V: √3 · |V/√3 + I·(R + jX)|,
+ * the star-equivalent phase of {@link recoverPhaseEmfFast} scaled back to line
+ * values, for loops over every sample diagnosed.
+ * @example lineEmfBehindTerminals(400, 0, 0.35, 3.0, 1) // 400 (open circuit)
+ */
+export function lineEmfBehindTerminals(voltsLl: number, currentA: number, ohmPerPhase: number, reactanceOhm: number, powerFactor: number): number {
+  return SQRT3 * recoverPhaseEmfFast(voltsLl / SQRT3, currentA, ohmPerPhase, reactanceOhm, powerFactor);
+}
+
+/**
  * Terminal phase voltage in V for a phase EMF `emfPhaseV` V carrying `currentA` A at `powerFactor`
  * (the inverse of {@link recoverPhaseEmf}); undefined when the EMF cannot drive that current.
  * @example terminalPhaseVolts({ emfPhaseV: 235.85, currentA: 10, ohmPerPhase: 0.5, reactanceOhm: 2, powerFactor: 1 }) // ≈ 230

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { keAtMagnetC, keTemperatureFactor, remanenceCoeffPctPerC } from './magnet-temperature';
+import fc from 'fast-check';
+import { keAtMagnetC, keTemperatureFactor, keTemperatureFactorFast, remanenceCoeffPctPerC } from './magnet-temperature';
 
 describe('magnet temperature', () => {
   it('uses the material coefficient unless overridden', () => {
@@ -23,5 +24,19 @@ describe('magnet temperature', () => {
     expect(() => remanenceCoeffPctPerC('ndfeb', 0.1)).toThrow(/overridePctPerC.*0.1/);
     expect(() => keAtMagnetC({ keVPerKrpm: 0, refC: 20, magnetC: 20, coeffPctPerC: -0.1 })).toThrow(/keVPerKrpm.*0/);
     expect(() => keTemperatureFactor(-0.2, 20, 600)).toThrow(/magnetC 600/);
+  });
+});
+
+describe('keTemperatureFactorFast (the per-sample correction of the diagnosis and the chart)', () => {
+  it('is keTemperatureFactor without the checks, and reaches 0 where that one throws', () => {
+    fc.assert(
+      fc.property(fc.double({ min: -2, max: -0.01, noNaN: true }), fc.double({ min: -60, max: 200, noNaN: true }), fc.double({ min: -80, max: 400, noNaN: true }), (coeff, refC, magnetC) => {
+        const fast = keTemperatureFactorFast(coeff, refC, magnetC);
+        if (fast > 0) expect(fast).toBe(keTemperatureFactor(coeff, refC, magnetC));
+        else expect(() => keTemperatureFactor(coeff, refC, magnetC)).toThrow(RangeError);
+      }),
+    );
+    // Ferrite −0.2 % per °C, 600 °C from a 20 °C reference: 1 − 0.002 · 580 = −0.16 (arithmetic by hand).
+    expect(keTemperatureFactorFast(-0.2, 20, 600)).toBeCloseTo(-0.16, 12);
   });
 });

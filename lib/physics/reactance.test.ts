@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { reactanceOhm } from './reactance';
+import fc from 'fast-check';
+import { reactanceOhm, reactanceOhmFast } from './reactance';
 
 describe('reactanceOhm', () => {
   it('is 2πfL', () => {
@@ -12,5 +13,15 @@ describe('reactanceOhm', () => {
   it('names a bad value', () => {
     expect(() => reactanceOhm(-1, 1)).toThrow(/hz.*-1/);
     expect(() => reactanceOhm(50, -2)).toThrow(/mh.*-2/);
+  });
+});
+
+describe('reactanceOhmFast', () => {
+  it('is reactanceOhm without the checks', () => {
+    fc.assert(
+      fc.property(fc.double({ min: 0, max: 500, noNaN: true }), fc.double({ min: 0, max: 100, noNaN: true }), (hz, mh) => {
+        expect(reactanceOhmFast(hz, mh)).toBe(reactanceOhm(hz, mh));
+      }),
+    );
   });
 });

@@ -20,6 +20,14 @@ function checkPoles(poles: number): void {
 export function electricalHz(poles: number, rpm: number): number {
   checkPoles(poles);
   if (!Number.isFinite(rpm)) throw new RangeError(`rpm must be a finite number, got ${rpm}`);
+  return electricalHzFast(poles, rpm);
+}
+
+/**
+ * {@link electricalHz} without the checks, for loops over every sample diagnosed (the caller's poles are valid).
+ * @example electricalHzFast(4, 1500) // 50
+ */
+export function electricalHzFast(poles: number, rpm: number): number {
   return (poles * rpm) / POLE_RPM_PER_HZ;
 }
 

@@ -8,10 +8,14 @@
  */
 import type { DiagnosisNameplate } from '@/lib/diagnosis/diagnose';
 import { resolveLimits } from '@/lib/diagnosis/limits';
-import { keTemperatureFactor, remanenceCoeffPctPerC } from '@/lib/physics/magnet-temperature';
+import { lineEmfBehindTerminals } from '@/lib/physics/emf';
+import { keTemperatureFactor, keTemperatureFactorFast, remanenceCoeffPctPerC } from '@/lib/physics/magnet-temperature';
 import { meanOfPhases } from '@/lib/physics/phase-mean';
+import { powerFactorOfLoad } from '@/lib/physics/power-factor';
+import { reactanceOhmFast } from '@/lib/physics/reactance';
 import { electricalHz } from '@/lib/physics/synchronous-speed';
-import { lineEmfBehindTerminals, loadPowerFactor, magnetTempC, windingOhm, windingTempC } from '@/lib/diagnosis/sample-emf';
+import { copperOhmAtFast } from '@/lib/physics/winding-resistance';
+import { magnetTempC, windingTempC } from '@/lib/diagnosis/sample-emf';
 
 /** The sample fields the chart needs (absent values null). */
 export interface EmfSample {
@@ -88,7 +92,6 @@ export function emfChart({
     }
   }
   const chartFactor = keTemperatureFactor(coeff, nameplate.keRefC, magnetC);
-  const henry = nameplate.phaseMh / 1000;
   const points: EmfPoint[] = [];
   for (const s of samples) {
     const speed = speedFrom === 'hz' ? (finite(s.hz) ? (s.hz * 120) / nameplate.poles : undefined) : finite(s.rpm) ? s.rpm : undefined;
@@ -102,11 +105,11 @@ export function emfChart({
       const ambientC = s.ambientC ?? Number.NaN;
       const sampleMagnetC = magnetTempC(statorC, ambientC, nameplate.keRefC);
       const hz = finite(s.hz) ? s.hz : electricalHz(nameplate.poles, speed);
-      const ohm = windingOhm(nameplate.phaseOhm, windingTempC(statorC, ambientC));
-      const pf = loadPowerFactor(s.kw ?? Number.NaN, vll, amps);
-      const emfLl = lineEmfBehindTerminals(vll, amps, ohm, 2 * Math.PI * hz * henry, pf);
+      const ohm = copperOhmAtFast(nameplate.phaseOhm, windingTempC(statorC, ambientC));
+      const pf = powerFactorOfLoad(s.kw ?? Number.NaN, vll, amps);
+      const emfLl = lineEmfBehindTerminals(vll, amps, ohm, reactanceOhmFast(hz, nameplate.phaseMh), pf);
       // Past the coefficient's linear range keep the point out rather than divide by nothing.
-      const sampleFactor = 1 + (coeff / 100) * (sampleMagnetC - nameplate.keRefC);
+      const sampleFactor = keTemperatureFactorFast(coeff, nameplate.keRefC, sampleMagnetC);
       if (sampleFactor > 0.05) correctedV = (emfLl * chartFactor) / sampleFactor;
     }
     points.push({ ts: s.ts, rpm: speed, terminalV: vll, correctedV });

@@ -8,7 +8,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { openDatabase, type DatabaseHandle } from '@/db/client';
-import { runDiagnosisPass } from '@/lib/diagnosis/live';
+import { runDiagnosisPass } from '@/lib/diagnosis/worker';
 import { startIngester, type Ingester } from '@/lib/ingest/ingester';
 import { createLiveHub, type LiveHub, type StampedEvent } from '@/lib/live/hub';
 import { startLiveListener, type LiveListener } from '@/lib/live/listener';

@@ -1,8 +1,9 @@
 /**
- * The live diagnosis: every `intervalS` seconds, every unit that received
- * samples since its last diagnosis is diagnosed over its most recent window
- * (the same library as `millrace check`), and its latest health, a history
- * row and its Ke trend are written.
+ * The diagnosis worker, the live diagnosis (lib/live is the pages' feed):
+ * every `intervalS` seconds, every unit that received samples since its last
+ * diagnosis is diagnosed over its most recent window (the same library as
+ * `millrace check`), and its latest health, a history row and its Ke trend
+ * are written.
  *
  * History is appended at most once per `historyEveryS` per unit (and always
  * when the verdict changes): successive windows overlap by all but a minute,
@@ -191,7 +192,8 @@ export async function runDiagnosisPass(options: DiagnosisPassOptions): Promise<D
   return { units: due.length, samples, historyRows, verdicts, elapsedMs: Date.now() - started };
 }
 
-export interface LiveDiagnosisOptions {
+/** Options of {@link startDiagnosisWorker}. */
+export interface DiagnosisWorkerOptions {
   readonly db: Db;
   /** Seconds from the start of one pass to the start of the next. */
   readonly intervalS: number;
@@ -209,7 +211,7 @@ export interface LiveDiagnosisOptions {
  * resolves when the pass in flight (if any) has finished. A failed pass is
  * logged and the loop goes on.
  */
-export function startLiveDiagnosis(options: LiveDiagnosisOptions): () => Promise<void> {
+export function startDiagnosisWorker(options: DiagnosisWorkerOptions): () => Promise<void> {
   if (!(options.intervalS > 0)) throw new RangeError(`intervalS must be above 0, got ${options.intervalS}`);
   if (!(options.windowHours > 0)) throw new RangeError(`windowHours must be above 0, got ${options.windowHours}`);
   let stopped = false;

@@ -1,5 +1,5 @@
 /**
- * Findings of a diagnosis: what was seen, the number, the threshold and what
+ * A finding of a diagnosis: what was seen, the number, the threshold and what
  * to do next. A finding that sends someone to the machine ends with the
  * safety caution.
  *
