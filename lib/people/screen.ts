@@ -65,6 +65,7 @@ async function siteChoicesOf(db: Db, viewer: Viewer): Promise<SiteChoice[]> {
 
 // ---------------------------------------------------------------- the people list
 
+/** One person in the people list. */
 export interface PeopleRow {
   readonly id: number;
   readonly email: string;
@@ -77,6 +78,7 @@ export interface PeopleRow {
   readonly mustChoosePassword: boolean;
 }
 
+/** /admin/people: everyone, and what the form to add a person offers. */
 export interface PeopleScreen {
   readonly caption: string;
   readonly roles: readonly RoleChoice[];
@@ -109,6 +111,7 @@ export async function readPeopleScreen({ db, viewer }: { db: Db; viewer: Viewer;
 
 // ---------------------------------------------------------------- one person
 
+/** An API token as the person page lists it (never the token itself). */
 export interface PersonToken {
   readonly id: number;
   readonly name: string;
@@ -117,6 +120,7 @@ export interface PersonToken {
   readonly revoked: boolean;
 }
 
+/** A display link as the person page lists it (never the link itself). */
 export interface PersonDisplayLink {
   readonly id: number;
   readonly name: string;
@@ -126,6 +130,7 @@ export interface PersonDisplayLink {
   readonly revoked: boolean;
 }
 
+/** /admin/people/[personId]: the person, their credentials, and the choices of its forms. */
 export interface PersonScreen {
   readonly person: { readonly id: number; readonly email: string; readonly role: Role; readonly siteIds: readonly string[]; readonly disabled: boolean; readonly mustChangePassword: boolean };
   /** Said once, just after the person was added. */
@@ -183,6 +188,7 @@ export async function readPersonScreen({
 
 // ---------------------------------------------------------------- the audit log
 
+/** One entry of the audit log, written out. */
 export interface AuditEntry {
   readonly id: number;
   readonly action: string;
@@ -194,6 +200,7 @@ export interface AuditEntry {
   readonly detail: string | undefined;
 }
 
+/** /admin/audit: one page of the log with its filter and the links to page on. */
 export interface AuditScreen {
   /** The filter as chosen ('' for any), for the form's menus. */
   readonly person: string;
@@ -268,6 +275,7 @@ export async function readAuditScreen({ db, viewer, searchParams }: { db: Db; vi
 
 // ---------------------------------------------------------------- your password
 
+/** /account/password. */
 export interface PasswordScreen {
   /** Signed in with a session: only then can a password be changed here. */
   readonly signedIn: boolean;
@@ -297,6 +305,7 @@ export function readPasswordScreen({ viewer, searchParams }: { viewer: Viewer; s
 
 // ---------------------------------------------------------------- sign-in
 
+/** /sign-in. */
 export interface SignInScreen {
   readonly next: string;
   readonly signedOut: boolean;
