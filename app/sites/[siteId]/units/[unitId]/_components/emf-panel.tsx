@@ -3,12 +3,21 @@ import { CHART_STYLE } from '@/app/_components/chart-style';
 import { EmfScatter } from '@/app/_components/charts';
 import { LocalTime } from '@/app/_components/local-time';
 import type { EmfPanelView } from '@/lib/units/view-model';
+import { ChartTable, type TableColumn } from './chart-table';
 
 const LEGEND: readonly LegendItem[] = [
   { look: CHART_STYLE.emfCorrected, label: 'EMF corrected for load and temperature' },
   { look: CHART_STYLE.emfTerminal, label: 'Terminal voltage as measured' },
   { look: CHART_STYLE.nameplateLine, label: 'Nameplate line' },
   { look: CHART_STYLE.emfAlarmLine, label: 'Alarm line' },
+];
+
+const COLUMNS: readonly TableColumn[] = [
+  { label: 'Speed, rpm' },
+  { label: 'Samples', num: true },
+  { label: 'Terminal, V', num: true },
+  { label: 'Corrected EMF, V', num: true },
+  { label: 'Nameplate line, V', num: true },
 ];
 
 /** The evidence: terminal voltage and corrected EMF against speed beside the nameplate line, in words and as a table too. */
@@ -32,33 +41,7 @@ export function EmfPanel({ emf, timeZone, nowMs }: { emf: EmfPanelView; timeZone
           )}
         </figcaption>
         {emf.table.length > 0 ? (
-          <details className="chart-table">
-            <summary>The same as a table</summary>
-            <div className="table-scroll">
-              <table>
-                <thead>
-                  <tr>
-                    <th scope="col">Speed, rpm</th>
-                    <th scope="col" className="num">Samples</th>
-                    <th scope="col" className="num">Terminal, V</th>
-                    <th scope="col" className="num">Corrected EMF, V</th>
-                    <th scope="col" className="num">Nameplate line, V</th>
-                  </tr>
-                </thead>
-                <tbody>
-                  {emf.table.map((b) => (
-                    <tr key={b.key}>
-                      <td>{b.speed}</td>
-                      <td className="num">{b.samples}</td>
-                      <td className="num">{b.terminal}</td>
-                      <td className="num">{b.corrected}</td>
-                      <td className="num">{b.nameplate}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
-          </details>
+          <ChartTable columns={COLUMNS} rows={emf.table.map((b) => ({ key: b.key, cells: [b.speed, b.samples, b.terminal, b.corrected, b.nameplate] }))} />
         ) : null}
       </figure>
     </section>

@@ -2,6 +2,7 @@ import { ChartLegend, type LegendItem } from '@/app/_components/chart-legend';
 import { CHART_STYLE } from '@/app/_components/chart-style';
 import { KeTrendChart } from '@/app/_components/charts';
 import type { KePanelView } from '@/lib/units/view-model';
+import { ChartTable, type TableColumn } from './chart-table';
 
 const LEGEND: readonly LegendItem[] = [
   { look: CHART_STYLE.keMedian, label: 'Daily median' },
@@ -10,6 +11,8 @@ const LEGEND: readonly LegendItem[] = [
   { look: CHART_STYLE.keWarnLine, label: 'Warning line' },
   { look: CHART_STYLE.keAlarmLine, label: 'Alarm line' },
 ];
+
+const COLUMNS: readonly TableColumn[] = [{ label: 'Day' }, { label: 'Ke ratio', num: true }, { label: '95 % interval', num: true }, { label: 'Diagnoses', num: true }];
 
 /** The corrected Ke ratio day by day, its trend and projection, in words and as a table too. */
 export function KePanel({ ke, timeZone }: { ke: KePanelView; timeZone: string }) {
@@ -22,33 +25,7 @@ export function KePanel({ ke, timeZone }: { ke: KePanelView; timeZone: string })
         <figcaption className="chart-summary" data-testid="ke-summary">
           {ke.summary}
         </figcaption>
-        {ke.table.length > 0 ? (
-          <details className="chart-table">
-            <summary>The same as a table</summary>
-            <div className="table-scroll">
-              <table>
-                <thead>
-                  <tr>
-                    <th scope="col">Day</th>
-                    <th scope="col" className="num">Ke ratio</th>
-                    <th scope="col" className="num">95 % interval</th>
-                    <th scope="col" className="num">Diagnoses</th>
-                  </tr>
-                </thead>
-                <tbody>
-                  {ke.table.map((d) => (
-                    <tr key={d.key}>
-                      <td>{d.day}</td>
-                      <td className="num">{d.ke}</td>
-                      <td className="num">{d.interval}</td>
-                      <td className="num">{d.diagnoses}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
-          </details>
-        ) : null}
+        {ke.table.length > 0 ? <ChartTable columns={COLUMNS} rows={ke.table.map((d) => ({ key: d.key, cells: [d.day, d.ke, d.interval, d.diagnoses] }))} /> : null}
       </figure>
     </section>
   );
