@@ -1,29 +1,17 @@
 import type { Metadata } from 'next';
-import { QUARANTINE_COUNT_CAP } from '@/lib/quality/queries';
-import { loadFleetScreen } from '@/lib/fleet/overview';
-import { UNIT_STATES, sinceText } from '@/lib/fleet/unit-state';
+import { loadFleetScreen } from '@/lib/fleet/screen';
 import { SAFETY_CAUTION } from '@/lib/diagnosis/findings';
-import { StateBadge, StateCounts } from './_components/state-badge';
-import { LocalTime } from './_components/local-time';
-import { ago, formatEnergyKwh, formatPowerKw } from './_components/format';
+import { StateCounts } from '@/app/_components/state-badge';
+import { SiteCard } from '@/app/_components/site-card';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Fleet' };
 
-/** A count of set-aside rows; the query stops counting past the cap. */
-function setAsideCount(n: number): string {
-  return n > QUARANTINE_COUNT_CAP ? `more than ${QUARANTINE_COUNT_CAP.toLocaleString('en-GB')}` : n.toLocaleString('en-GB');
-}
 
 export default async function FleetPage() {
   const fleet = await loadFleetScreen();
   const now = new Date(fleet.nowMs);
-  const totals = Object.fromEntries(UNIT_STATES.map((s) => [s, fleet.sites.reduce((n, site) => n + site.counts[s], 0)])) as Record<
-    (typeof UNIT_STATES)[number],
-    number
-  >;
-  const unitCount = fleet.sites.reduce((n, s) => n + s.unitCount, 0);
-  const attention = unitCount - totals.healthy;
+  const { totals, unitCount, attention } = fleet;
   return (
     <>
       <section className="page-head" aria-labelledby="fleet-heading">
@@ -52,66 +40,7 @@ export default async function FleetPage() {
       ) : (
         <div className="grid">
           {fleet.sites.map((site) => (
-            <section
-              key={site.id}
-              className={`site panel ${site.worst === 'fault' ? 'panel-fault' : site.worst === 'warning' ? 'panel-warning' : ''}`}
-              data-testid={`site-${site.id}`}
-              data-site={site.id}
-              data-worst={site.worst}
-              aria-labelledby={`site-${site.id}-name`}
-            >
-              <h2 id={`site-${site.id}-name`}>
-                <a href={`/sites/${site.id}`}>{site.name}</a>{' '}
-                <span className="muted">
-                  {site.unitCount} unit{site.unitCount === 1 ? '' : 's'}
-                </span>
-              </h2>
-              <StateCounts counts={site.counts} label={`Units in each state at ${site.name}`} />
-              <dl className="figures">
-                <div>
-                  <dt>Power now</dt>
-                  <dd>{formatPowerKw(site.powerKw)}</dd>
-                </div>
-                <div>
-                  <dt>Energy today</dt>
-                  <dd>{formatEnergyKwh(site.energyTodayKwh)}</dd>
-                </div>
-                <div>
-                  <dt>Oldest last sample</dt>
-                  <dd>
-                    {site.neverSent ? (
-                      'a unit never sent one'
-                    ) : site.oldestLastSampleMs === null ? (
-                      '–'
-                    ) : (
-                      <>
-                        <LocalTime time={new Date(site.oldestLastSampleMs)} timeZone={site.timezone} now={now} />{' '}
-                        <span className="muted">({ago(new Date(site.oldestLastSampleMs), now)})</span>
-                      </>
-                    )}
-                  </dd>
-                </div>
-              </dl>
-              {site.attention.length === 0 ? (
-                <p className="note">Every unit healthy and reporting.</p>
-              ) : (
-                <>
-                  <h3 className="visually-hidden">Units needing attention at {site.name}</h3>
-                  <ul className="attention" data-testid="attention">
-                    {site.attention.map((a) => (
-                      <li key={a.id} data-unit={a.id} data-state={a.state}>
-                        <StateBadge state={a.state} label={a.label} />
-                        <a href={`/sites/${site.id}/units/${a.id}`}>
-                          <span className="unit-id">{a.id}</span>
-                          {a.name ? ` ${a.name}` : ''}
-                        </a>
-                        <span className="why">{a.reason}</span>
-                      </li>
-                    ))}
-                  </ul>
-                </>
-              )}
-            </section>
+            <SiteCard key={site.id} site={site} now={now} />
           ))}
         </div>
       )}
@@ -121,7 +50,7 @@ export default async function FleetPage() {
           <h2 id="set-aside-heading">
             Telemetry set aside{' '}
             <span className="muted">
-              {setAsideCount(fleet.quarantine.lastDay)} in the last day, {setAsideCount(fleet.quarantine.total)} in the last {fleet.retentionDays} days
+              {fleet.quarantine.lastDayText} in the last day, {fleet.quarantine.totalText} in the last {fleet.retentionDays} days
             </span>
           </h2>
           <p className="note">
@@ -131,7 +60,7 @@ export default async function FleetPage() {
           <ul>
             {fleet.quarantine.recent.map((q, i) => (
               <li key={i}>
-                <span className="muted">{sinceText(fleet.nowMs - q.receivedAt.getTime())} ago</span> <code>{q.topic}</code> {q.reason}
+                <span className="muted">{q.ago}</span> <code>{q.topic}</code> {q.reason}
               </li>
             ))}
           </ul>

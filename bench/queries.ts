@@ -22,7 +22,7 @@ import { join } from 'node:path';
 import { sql } from 'drizzle-orm';
 import { openDatabase, rowsOf, type DatabaseHandle } from '@/db/client';
 import { LOCAL_VIEWER } from '@/lib/auth/viewer';
-import { readFleetScreen, readSiteScreen } from '@/lib/fleet/overview';
+import { readFleetScreen, readSiteScreen } from '@/lib/fleet/screen';
 import { readUnitScreen } from '@/lib/units/screen';
 
 const unitCount = Number(process.argv[2] ?? 1000);

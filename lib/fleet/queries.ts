@@ -1,10 +1,10 @@
 /**
  * Data access for sites and units.
  */
-import { asc, desc, eq, inArray, sql, type SQL } from 'drizzle-orm';
+import { asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { rowsOf, type Db } from '@/db/client';
-import { quarantine, sites, units, type SiteRow, type UnitRow } from '@/db/schema';
-import type { Fleet, Nameplate } from '@/lib/contract/nameplate';
+import { sites, units, type SiteRow, type UnitRow } from '@/db/schema';
+import type { Nameplate } from '@/lib/contract/nameplate';
 import { canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
 import { compareStates, OFFLINE_AFTER_MS, unitStateOf, UNIT_STATES, type UnitState, type UnitStateView } from './unit-state';
 

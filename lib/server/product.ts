@@ -7,6 +7,7 @@
  * With `--role web` only the database and the web app run (`npm run web`, as
  * in docker-compose, where the ingester is its own service).
  */
+import { provideDemoStatus } from '@/lib/fleet/demo-status';
 import { sql } from 'drizzle-orm';
 import { loadConfig, type Config } from '@/lib/config/env';
 import { AppError } from '@/lib/errors/app-error';
@@ -95,7 +96,10 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   stack.push({ name: 'diagnosis', stop: async () => diagnosis() });
 
   if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack, embedded);
-  else registerComponent('demo', { state: () => ({ status: 'off', reason: 'DEMO=off' }) });
+  else {
+    registerComponent('demo', { state: () => ({ status: 'off', reason: 'DEMO=off' }) });
+    provideDemoStatus(() => ({ status: 'off' }));
+  }
 }
 
 let publisherState: LivePublisher['state'] | undefined;
@@ -147,6 +151,8 @@ async function startDemo(config: Config, handle: DatabaseHandle, brokerUrl: stri
   const simulator = await startSimulator({ brokerUrl, fleet: demoFleet, log: simLog, ...credentials });
   stack.push({ name: 'demo', stop: () => simulator.stop() });
   registerComponent('demo', { state: () => ({ status: 'ok', phase, ...simulator.state() }) });
+  provideDemoStatus(() => ({ status: 'ok', phase }));
+  stack.push({ name: 'demo status', stop: async () => provideDemoStatus(undefined) });
   if (!hasHistory) {
     // History goes through the broker like everything else; the page works meanwhile.
     backfill({ brokerUrl, fleet: demoFleet, days: 3, log: simLog, ...credentials })

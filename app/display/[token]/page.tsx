@@ -1,7 +1,8 @@
 import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
-import { loadDisplayScreen } from '@/lib/fleet/display';
-import { StateBadge, StateCounts } from '@/app/_components/state-badge';
+import { loadDisplayScreen } from '@/lib/fleet/screen';
+import { StateBadge } from '@/app/_components/state-badge';
+import { SiteCard } from '@/app/_components/site-card';
 import { ago, formatEnergyKwh, formatPowerKw } from '@/app/_components/format';
 
 export const dynamic = 'force-dynamic';
@@ -78,29 +79,7 @@ export default async function DisplayPage({ params }: { params: Promise<{ token:
       </p>
       <div className="grid">
         {fleet.sites.map((site) => (
-          <section key={site.id} className={`site${site.worst === 'fault' ? ' panel-fault' : site.worst === 'warning' ? ' panel-warning' : ''}`} aria-labelledby={`site-${site.id}`}>
-            <h2 id={`site-${site.id}`}>{site.name}</h2>
-            <StateCounts counts={site.counts} label={`Units in each state, ${site.name}`} />
-            <dl className="figures">
-              <div>
-                <dt>Power now</dt>
-                <dd>{formatPowerKw(site.powerKw)}</dd>
-              </div>
-              <div>
-                <dt>Energy today</dt>
-                <dd>{formatEnergyKwh(site.energyTodayKwh)}</dd>
-              </div>
-            </dl>
-            {site.attention.length ? (
-              <ul className="attention">
-                {site.attention.map((a) => (
-                  <li key={a.id}>
-                    <StateBadge state={a.state} label={a.label} /> <span className="unit-id">{a.name ?? a.id}</span> <span className="why">{a.reason}</span>
-                  </li>
-                ))}
-              </ul>
-            ) : null}
-          </section>
+          <SiteCard key={site.id} site={site} now={now} linked={false} />
         ))}
       </div>
       {fleet.sites.length === 0 ? <p className="empty">No sites yet.</p> : null}
