@@ -1,5 +1,5 @@
 import { CHART_STYLE } from './chart-style';
-import { formatRatio } from './format';
+import { formatRatio } from '@/lib/text/format';
 
 /** Scale of the mark: corrected Ke ratios from 0.90 to 1.05 of nameplate. */
 const LO = 0.9;

@@ -1,5 +1,5 @@
 import { CHART_STYLE } from './chart-style';
-import { formatNumber } from './format';
+import { formatNumber } from '@/lib/text/format';
 
 const W = 120;
 const H = 28;
