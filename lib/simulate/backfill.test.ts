@@ -5,9 +5,18 @@ import { fleetSchema } from '@/lib/contract/nameplate';
 import { parseTelemetrySample, parseTimestampMs } from '@/lib/contract/telemetry';
 import { createLogger } from '@/lib/log/logger';
 import { freePort } from '@/lib/net/ports';
-import { backfill, payloadsOf, MAX_BACKFILL_PAYLOAD_BYTES } from './backfill';
+import {
+  DEFAULT_BACKFILL_SAMPLES_PER_S,
+  MAX_BACKFILL_PAYLOAD_BYTES,
+  backfill,
+  backfillSettings,
+  createUploadFlow,
+  historyChunk,
+  historyTimes,
+  payloadsOf,
+} from './backfill';
 import { demoFleet } from './demo-fleet';
-import type { PublishedSample } from './machine';
+import type { PublishedSample, UnitModel } from './machine';
 
 const log = createLogger('test', 'silent');
 const fleet = fleetSchema.parse(demoFleet);
@@ -104,5 +113,109 @@ describe('payloadsOf', () => {
     expect(parts.reduce((n, p) => n + p.count, 0)).toBe(3000);
     for (const p of parts) expect(Buffer.byteLength(p.json)).toBeLessThanOrEqual(MAX_BACKFILL_PAYLOAD_BYTES);
     expect(payloadsOf(many.slice(0, 10))).toHaveLength(1);
+  });
+});
+
+describe('backfillSettings and historyTimes', () => {
+  it('fills in the defaults and names an option out of range', () => {
+    expect(backfillSettings({ days: 3 })).toEqual({ days: 3, intervalS: 10, perMessage: 360, maxInFlight: 4, pace: DEFAULT_BACKFILL_SAMPLES_PER_S });
+    expect(() => backfillSettings({ days: 1, samplesPerMessage: 2.5 })).toThrow(/samplesPerMessage must be a whole number from 1 to 100000, got 2\.5/);
+    expect(() => backfillSettings({ days: 1, maxInFlight: 0 })).toThrow(/maxInFlight.*got 0/);
+    expect(() => backfillSettings({ days: 1, maxSamplesPerS: Number.NaN })).toThrow(/maxSamplesPerS.*got NaN/);
+  });
+
+  it('lays the sample times out back from the end, one interval apart', () => {
+    const nowMs = Date.UTC(2026, 2, 1);
+    expect(historyTimes({ days: 1, intervalS: 10 }, undefined, nowMs)).toEqual({ endMs: nowMs, count: 8640, stepMs: 10_000, firstMs: nowMs - 8639 * 10_000 });
+    expect(historyTimes({ days: 0.05, intervalS: 10 }, nowMs - 1000, nowMs)).toMatchObject({ endMs: nowMs - 1000, count: 432 });
+    expect(historyTimes({ days: 0, intervalS: 10 }, undefined, nowMs).count).toBe(0);
+    expect(() => historyTimes({ days: 1, intervalS: 10 }, nowMs + 1, nowMs)).toThrow(/endMs must not be in the future, got 2026-03-01T00:00:00\.001Z/);
+  });
+});
+
+describe('historyChunk', () => {
+  it('steps the unit over its sample times and leaves out those in its communications gap', () => {
+    const times: number[] = [];
+    const model = {
+      step: (tMs: number) => {
+        times.push(tMs);
+        const inHistoryGap = tMs >= 1_000_030_000;
+        return { sample: { ts: tMs, rpm: 1 }, truth: { effects: { inHistoryGap } } } as unknown as ReturnType<UnitModel['step']>;
+      },
+    };
+    const chunk = historyChunk(model, { firstMs: 1_000_000_000, stepMs: 10_000 }, 2, 5);
+    expect(times).toEqual([1_000_020_000, 1_000_030_000, 1_000_040_000]);
+    expect(chunk).toEqual({ samples: [{ ts: 1_000_020_000, rpm: 1 }], inGaps: 2 });
+  });
+});
+
+describe('createUploadFlow', () => {
+  /** A device whose publishes wait until the test settles them. */
+  function device() {
+    const waiting: { resolve: () => void; reject: (e: unknown) => void }[] = [];
+    const sent: string[] = [];
+    return {
+      sent,
+      publishTelemetry: (json: string) => {
+        sent.push(json);
+        return new Promise<void>((resolve, reject) => waiting.push({ resolve, reject }));
+      },
+      settle: (error?: Error) => {
+        const next = waiting.shift()!;
+        if (error) next.reject(error);
+        else next.resolve();
+      },
+    };
+  }
+  const tick = () => new Promise((r) => setTimeout(r, 0));
+
+  it('keeps at most maxInFlight messages waiting for their acknowledgement, and counts what was acknowledged', async () => {
+    const d = device();
+    const flow = createUploadFlow({ maxInFlight: 2, pace: 0 }, Date.now());
+    expect(await flow.send(d, { json: 'a', count: 3 })).toBe(true);
+    expect(await flow.send(d, { json: 'b', count: 3 })).toBe(true);
+    let third = false;
+    const sending = flow.send(d, { json: 'c', count: 1 }).then((ok) => (third = ok));
+    await tick();
+    expect(d.sent).toEqual(['a', 'b']);
+    d.settle();
+    await sending;
+    expect(third).toBe(true);
+    expect(d.sent).toEqual(['a', 'b', 'c']);
+    let drained = false;
+    const draining = flow.drain().then(() => (drained = true));
+    d.settle();
+    await tick();
+    expect(drained).toBe(false);
+    d.settle();
+    await draining;
+    expect(flow.counts()).toEqual({ messages: 3, samples: 7, firstError: undefined });
+  });
+
+  it('holds the average pace', async () => {
+    const d = device();
+    const started = Date.now();
+    const flow = createUploadFlow({ maxInFlight: 10, pace: 1000 }, started);
+    await flow.send(d, { json: 'a', count: 50 });
+    await flow.send(d, { json: 'b', count: 50 });
+    // 100 samples at 1000 a second may not leave before 100 ms.
+    expect(Date.now() - started).toBeGreaterThanOrEqual(95);
+  });
+
+  it('stops at the first failure: later sends refuse, a waiting one is woken, drain waits for what is out', async () => {
+    const d = device();
+    const flow = createUploadFlow({ maxInFlight: 1, pace: 0 }, Date.now());
+    await flow.send(d, { json: 'a', count: 1 });
+    const waiting = flow.send(d, { json: 'b', count: 1 });
+    d.settle(new Error('connection lost'));
+    expect(await waiting).toBe(false);
+    expect(flow.ok()).toBe(false);
+    expect(await flow.send(d, { json: 'c', count: 1 })).toBe(false);
+    await flow.drain();
+    expect(d.sent).toEqual(['a']);
+    expect(flow.counts()).toMatchObject({ messages: 0, samples: 0, firstError: new Error('connection lost') });
+    // A stop on request keeps the first reason.
+    flow.fail(new Error('stopped on request'));
+    expect((flow.counts().firstError as Error).message).toBe('connection lost');
   });
 });

@@ -1,12 +1,14 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import mqtt, { type MqttClient } from 'mqtt';
+import type { BrokerIdentity } from '@/lib/broker/access';
 import { startEmbeddedBroker, type EmbeddedBroker } from '@/lib/broker/embedded';
 import { fleetSchema } from '@/lib/contract/nameplate';
 import { parseTelemetrySample } from '@/lib/contract/telemetry';
 import { createLogger } from '@/lib/log/logger';
 import { freePort } from '@/lib/net/ports';
 import { demoFleet } from './demo-fleet';
-import { startSimulator } from './simulator';
+import { emptyCounters } from './live-unit';
+import { simulatorState, startSimulator } from './simulator';
 
 const log = createLogger('test', 'silent');
 const fleet = fleetSchema.parse(demoFleet);
@@ -122,5 +124,75 @@ describe('startSimulator against the embedded broker', () => {
   it('names what is wrong with a bad fleet', async () => {
     const bad = { sites: [], units: [{ ...demoFleet.units[0], poles: 7 }] };
     await expect(startSimulator({ brokerUrl: broker.url, fleet: bad, log })).rejects.toThrow(/units\[0\]\.poles: must be an even number, got 7/);
+  });
+});
+
+describe('startSimulator credentials', () => {
+  it('signs each unit in with its own credentials when it has them, else with the shared ones', async () => {
+    const seen: string[] = [];
+    const units = pick('qv-01', 'pd-03');
+    const owner = new Map(units.units.map((u) => [`${u.id}-own`, u]));
+    const broker = await startEmbeddedBroker({
+      port: await freePort(),
+      auth: {
+        verify: async (username, password): Promise<BrokerIdentity | undefined> => {
+          seen.push(`${username}:${password.toString()}`);
+          const u = owner.get(username) ?? (username === 'shared' ? units.units.find((x) => x.id === 'pd-03') : undefined);
+          return u === undefined ? undefined : { kind: 'device', username, siteId: u.siteId, unitId: u.id };
+        },
+      },
+    });
+    try {
+      const sim = await startSimulator({
+        brokerUrl: broker.url,
+        fleet: units,
+        log,
+        username: 'shared',
+        password: 'shared-secret',
+        credentialsFor: (_siteId, unitId) => (unitId === 'qv-01' ? { username: 'qv-01-own', password: 'own-secret' } : undefined),
+        clientIdPrefix: 'test-creds',
+      });
+      await sim.stop();
+      expect(seen.sort()).toEqual(['qv-01-own:own-secret', 'shared:shared-secret']);
+    } finally {
+      await broker.close();
+    }
+  });
+});
+
+describe('simulatorState', () => {
+  it('reports the run: counts, units publishing and offline, times as ISO text', () => {
+    const counters = { ...emptyCounters(), messagesSent: 3, samplesSent: 12, lastPublishMs: Date.UTC(2026, 2, 1, 12) };
+    const units = [
+      { nameplate: fleet.units[0]!, device: { connected: true } },
+      { nameplate: fleet.units[1]!, device: undefined },
+      { nameplate: fleet.units[2]!, device: { connected: false } },
+    ];
+    const state = simulatorState({ lifecycle: 'running', counters }, units, {
+      startedMs: Date.UTC(2026, 2, 1, 11),
+      broker: 'mqtt://127.0.0.1:1883',
+      seed: 4,
+      faults: { epochMs: Date.UTC(2026, 1, 22) },
+      rateHz: 2,
+      samplesPerMessage: 4,
+    });
+    expect(state).toEqual({
+      lifecycle: 'running',
+      startedAt: '2026-03-01T11:00:00.000Z',
+      broker: 'mqtt://127.0.0.1:1883',
+      seed: 4,
+      faultEpoch: '2026-02-22T00:00:00.000Z',
+      rateHz: 2,
+      samplesPerMessage: 4,
+      units: 3,
+      unitsPublishing: 1,
+      unitsOffline: [fleet.units[1]!.id, fleet.units[2]!.id],
+      messagesSent: 3,
+      samplesSent: 12,
+      samplesDropped: 0,
+      messagesFailed: 0,
+      lastPublishAt: '2026-03-01T12:00:00.000Z',
+    });
+    expect(simulatorState({ lifecycle: 'stopped', counters: emptyCounters() }, [], { startedMs: 0, broker: 'b', seed: 1, faults: { epochMs: 0 }, rateHz: 1, samplesPerMessage: 1 }).lastPublishAt).toBeNull();
   });
 });

@@ -147,7 +147,7 @@ async function closeEvery(run: LiveRun, units: readonly LiveUnit[]): Promise<voi
 /** The run's report: fixed facts of the start, then the units and counts now. */
 export function simulatorState(
   run: Pick<LiveRun, 'lifecycle' | 'counters'>,
-  units: readonly Pick<LiveUnit, 'device' | 'nameplate'>[],
+  units: readonly { readonly nameplate: { readonly id: string }; readonly device: { readonly connected: boolean } | undefined }[],
   about: { startedMs: number; broker: string; seed: number; faults: FaultSettings; rateHz: number; samplesPerMessage: number },
 ): SimulatorState {
   const { counters } = run;
