@@ -22,7 +22,6 @@ import {
 } from './live-unit';
 
 export { backfill, type BackfillOptions, type BackfillResult } from './backfill';
-export { MAX_UNACKED_MESSAGES } from './live-unit';
 
 /** Samples per second per unit by default. */
 export const DEFAULT_RATE_HZ = 2;
@@ -52,7 +51,7 @@ export interface SimulatorState {
   /** Messages and samples the broker acknowledged. */
   messagesSent: number;
   samplesSent: number;
-  /** Samples dropped because the broker stopped acknowledging (see MAX_UNACKED_MESSAGES). */
+  /** Samples dropped because the broker stopped acknowledging (see MAX_UNACKED_MESSAGES in live-unit.ts). */
   samplesDropped: number;
   /** Messages whose publish failed (e.g. lost in a dropped connection). */
   messagesFailed: number;
