@@ -4,8 +4,9 @@
  * as the screens. The `*Answer` functions take the database and viewer
  * explicitly (tests call them); the `answer*` ones find both for a request.
  */
-import { getDatabase, type Db } from '@/db/client';
-import { currentViewer, type Viewer } from '@/lib/auth/viewer';
+import type { Db } from '@/db/client';
+import type { Viewer } from '@/lib/auth/viewer';
+import { requestContext } from '@/lib/request/context';
 import { getSitesWithUnitIds } from '@/lib/fleet/queries';
 import { getUnitHealthReport } from '@/lib/units/queries';
 import { answer, jsonResponse, notFound, parseParams, unitParamsSchema } from './http';
@@ -28,15 +29,15 @@ export function unitHealthAnswer({ db, viewer, params }: { db: Db; viewer: Viewe
 /** `GET /api/v1/sites` of this request. */
 export function answerSites(): Promise<Response> {
   return answer(async () => {
-    const { db } = await getDatabase();
-    return sitesAnswer({ db, viewer: await currentViewer() });
+    const { db, viewer } = await requestContext();
+    return sitesAnswer({ db, viewer });
   });
 }
 
 /** `GET /api/v1/units/SITE/UNIT/health` of this request. */
 export function answerUnitHealth(params: unknown): Promise<Response> {
   return answer(async () => {
-    const { db } = await getDatabase();
-    return unitHealthAnswer({ db, viewer: await currentViewer(), params });
+    const { db, viewer } = await requestContext();
+    return unitHealthAnswer({ db, viewer, params });
   });
 }
