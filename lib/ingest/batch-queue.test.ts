@@ -7,7 +7,11 @@ const T0 = 1_767_225_600_000;
 const unit = { siteId: 'karrow-fell', id: 'wt-01' };
 
 /** A telemetry message of `samples` samples received at `receivedAtMs`, on a connection open while `alive()`. */
-function message(samples: number, receivedAtMs: number, { qos = 1, alive = () => true, quarantined = NO_ENTRIES } = {}): PendingMessage {
+function message(
+  samples: number,
+  receivedAtMs: number,
+  { qos = 1, alive = () => true, quarantined = NO_ENTRIES }: { qos?: number; alive?: () => boolean; quarantined?: QuarantineEntry[] } = {},
+): PendingMessage {
   const decoded = decodedMessage(unit, Array.from({ length: samples }, (_, i) => ({ ts: T0 + i * 1000, rpm: 250, vab: 230 })));
   return { ...decoded, receivedAtMs, quarantined, qos, receipt: { ack: () => {}, alive } };
 }
