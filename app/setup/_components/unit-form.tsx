@@ -66,6 +66,179 @@ const LIMIT_HINTS: Record<string, string> = {
   'diagnosis.windowHours': 'hours, at most 744; default from the server (6)',
 };
 
+type Values = Record<string, string>;
+type Problems = Record<string, string>;
+/** Makes one labelled field of the form with its value as typed and its problem. */
+type MakeField = (name: string, label: string, hint?: string, more?: { optional?: boolean; wide?: boolean; number?: boolean }) => React.ReactNode;
+
+function fieldMaker(v: Values, e: Problems): MakeField {
+  return function makeField(name, label, hint, more = {}) {
+    return (
+      <Field
+        key={name}
+        name={name}
+        label={label}
+        hint={hint}
+        error={e[name]}
+        defaultValue={v[name] ?? ''}
+        optional={more.optional}
+        wide={more.wide}
+        type={more.number === false ? 'text' : 'number-ish'}
+      />
+    );
+  };
+}
+
+function IdentityFields({
+  f,
+  v,
+  e,
+  sites,
+  editing,
+  kind,
+  onKind,
+}: {
+  f: MakeField;
+  v: Values;
+  e: Problems;
+  sites: ReadonlyArray<{ id: string; name: string }>;
+  editing?: { siteId: string; unitId: string };
+  kind: 'wind' | 'hydro';
+  onKind: (kind: 'wind' | 'hydro') => void;
+}) {
+  return (
+    <fieldset className={styles.fieldset}>
+      <legend>Identity</legend>
+      {editing ? (
+        <>
+          <Field name="id" label="Unit id" defaultValue={editing.unitId} readOnly hint="devices publish under it: not changed here" />
+          <Field name="siteId" label="Site" defaultValue={editing.siteId} readOnly />
+        </>
+      ) : (
+        <>
+          <Field name="id" label="Unit id" hint="1 to 64 of a-z, 0-9 and -, such as tarn-03; devices publish under it" error={e.id} defaultValue={v.id ?? ''} />
+          <SelectField
+            name="siteId"
+            label="Site"
+            error={e.siteId}
+            defaultValue={v.siteId ?? sites[0]?.id}
+            options={sites.map((s) => ({ value: s.id, label: `${s.name} (${s.id})` }))}
+          />
+        </>
+      )}
+      {f('name', 'Name', 'as people call it', { optional: true, number: false })}
+      <SelectField
+        name="kind"
+        label="Kind"
+        error={e.kind}
+        defaultValue={kind}
+        onChange={(value) => onKind(value === 'hydro' ? 'hydro' : 'wind')}
+        options={[
+          { value: 'wind', label: 'Wind' },
+          { value: 'hydro', label: 'Hydro' },
+        ]}
+      />
+    </fieldset>
+  );
+}
+
+function NameplateFields({ f, v, e }: { f: MakeField; v: Values; e: Problems }) {
+  return (
+    <fieldset className={styles.fieldset}>
+      <legend>Generator nameplate</legend>
+      {f('ratedKw', 'Rated power', 'kW')}
+      {f('ratedRpm', 'Rated speed', 'rev/min')}
+      {f('maxRpm', 'Overspeed limit', 'rev/min, at least the rated speed')}
+      {f('poles', 'Poles', 'number of magnetic poles, even (such as 18)')}
+      {f('keVPerKrpm', 'Ke', 'open-circuit line-to-line V (RMS) per 1000 rev/min')}
+      {f('keRefC', 'Ke reference temperature', '°C at which Ke was measured; default 20', { optional: true })}
+      <SelectField
+        name="magnet"
+        label="Magnet material"
+        error={e.magnet}
+        defaultValue={v.magnet ?? 'ndfeb'}
+        options={MAGNET_MATERIALS.map((m) => ({ value: m, label: MAGNET_LABEL[m] }))}
+      />
+      {f('magnetTempCoeffPctPerC', 'Magnet temperature coefficient', '% per °C, negative; blank: the material’s typical value', { optional: true })}
+      {f('phaseOhm', 'Phase resistance', 'Ω per phase (star equivalent) at 20 °C')}
+      {f('phaseMh', 'Phase inductance', 'mH per phase; blank or 0 if unknown', { optional: true })}
+    </fieldset>
+  );
+}
+
+function PowerCurveField({ v, e }: { v: Values; e: Problems }) {
+  const id = fieldId('powerCurve');
+  return (
+    <div className={`${styles.field} ${styles.wide}`}>
+      <label htmlFor={id} className={styles.label}>
+        Power curve
+      </label>
+      <textarea
+        id={id}
+        name="powerCurve"
+        className={`${styles.input} ${styles.textarea}`}
+        defaultValue={v.powerCurve ?? ''}
+        rows={8}
+        spellCheck={false}
+        aria-invalid={e.powerCurve ? true : undefined}
+        aria-describedby={`${id}-hint${e.powerCurve ? ` ${id}-error` : ''}`}
+      />
+      {e.powerCurve ? (
+        <span id={`${id}-error`} className={styles.error}>
+          {e.powerCurve}
+        </span>
+      ) : null}
+      <span id={`${id}-hint`} className={styles.hint}>
+        One point a line: wind speed in m/s, then power in kW at 1.225 kg/m³, such as “5 1.2”. At least two points, wind speed rising.
+      </span>
+    </div>
+  );
+}
+
+function TurbineFields({ f, v, e, kind }: { f: MakeField; v: Values; e: Problems; kind: 'wind' | 'hydro' }) {
+  return (
+    <>
+      <fieldset className={styles.fieldset} hidden={kind !== 'wind'} disabled={kind !== 'wind'}>
+        <legend>Wind turbine</legend>
+        {f('cutInMs', 'Cut-in wind speed', 'm/s')}
+        {f('cutOutMs', 'Cut-out wind speed', 'm/s, above cut-in')}
+        {f('rotorDiameterM', 'Rotor diameter', 'm')}
+        <PowerCurveField v={v} e={e} />
+      </fieldset>
+
+      <fieldset className={styles.fieldset} hidden={kind !== 'hydro'} disabled={kind !== 'hydro'}>
+        <legend>Hydro turbine</legend>
+        {f('designHeadM', 'Design head', 'm, net')}
+        {f('designFlowM3s', 'Design flow', 'm³/s')}
+        {f('efficiency', 'Water-to-wire efficiency', 'fraction above 0, at most 1 (such as 0.72)')}
+      </fieldset>
+    </>
+  );
+}
+
+/** The per-unit limits, in the order a person tunes them. */
+const LIMIT_ORDER = [
+  'diagnosis.keWarnRatio',
+  'diagnosis.keAlarmRatio',
+  'diagnosis.unbalanceAlarmPct',
+  'diagnosis.speedRatioTolerance',
+  'diagnosis.minSpeedFraction',
+  'diagnosis.minSpeedSpanFraction',
+  'diagnosis.minSamples',
+  'diagnosis.maxSpeedRateFractionPerS',
+  'diagnosis.windowHours',
+] as const;
+
+function LimitFields({ f }: { f: MakeField }) {
+  return (
+    <fieldset className={styles.fieldset}>
+      <legend>Diagnosis limits (optional)</legend>
+      <p className={styles.fieldsetNote}>Leave blank to use the defaults. They are common practice, not from a standard; change them only with a reason for this machine.</p>
+      {LIMIT_ORDER.map((name) => f(name, UNIT_FIELD_LABELS[name]!, LIMIT_HINTS[name], { optional: true }))}
+    </fieldset>
+  );
+}
+
 export function UnitForm({
   action,
   initial,
@@ -82,7 +255,7 @@ export function UnitForm({
   submitLabel: string;
 }) {
   const [state, formAction, pending] = useActionState(action, initial);
-  const [kind, setKind] = useState(initial.values?.kind === 'hydro' ? 'hydro' : 'wind');
+  const [kind, setKind] = useState<'wind' | 'hydro'>(initial.values?.kind === 'hydro' ? 'hydro' : 'wind');
   const formRef = useRef<HTMLFormElement>(null);
   const v = state.values ?? {};
   const e = problemsOf(state);
@@ -93,126 +266,14 @@ export function UnitForm({
     first?.focus();
   }, [state]);
 
-  const f = (name: string, label: string, hint?: string, more: { optional?: boolean; wide?: boolean; number?: boolean } = {}) => (
-    <Field
-      key={name}
-      name={name}
-      label={label}
-      hint={hint}
-      error={e[name]}
-      defaultValue={v[name] ?? ''}
-      optional={more.optional}
-      wide={more.wide}
-      type={more.number === false ? 'text' : 'number-ish'}
-    />
-  );
-
+  const f = fieldMaker(v, e);
   return (
     <form ref={formRef} action={formAction} className={styles.form} key={state.submitted} noValidate>
       <ErrorSummary errors={e} labels={UNIT_FIELD_LABELS} />
-      <fieldset className={styles.fieldset}>
-        <legend>Identity</legend>
-        {editing ? (
-          <>
-            <Field name="id" label="Unit id" defaultValue={editing.unitId} readOnly hint="devices publish under it: not changed here" />
-            <Field name="siteId" label="Site" defaultValue={editing.siteId} readOnly />
-          </>
-        ) : (
-          <>
-            <Field name="id" label="Unit id" hint="1 to 64 of a-z, 0-9 and -, such as tarn-03; devices publish under it" error={e.id} defaultValue={v.id ?? ''} />
-            <SelectField
-              name="siteId"
-              label="Site"
-              error={e.siteId}
-              defaultValue={v.siteId ?? sites[0]?.id}
-              options={sites.map((s) => ({ value: s.id, label: `${s.name} (${s.id})` }))}
-            />
-          </>
-        )}
-        {f('name', 'Name', 'as people call it', { optional: true, number: false })}
-        <SelectField
-          name="kind"
-          label="Kind"
-          error={e.kind}
-          defaultValue={kind}
-          onChange={(value) => setKind(value === 'hydro' ? 'hydro' : 'wind')}
-          options={[
-            { value: 'wind', label: 'Wind' },
-            { value: 'hydro', label: 'Hydro' },
-          ]}
-        />
-      </fieldset>
-
-      <fieldset className={styles.fieldset}>
-        <legend>Generator nameplate</legend>
-        {f('ratedKw', 'Rated power', 'kW')}
-        {f('ratedRpm', 'Rated speed', 'rev/min')}
-        {f('maxRpm', 'Overspeed limit', 'rev/min, at least the rated speed')}
-        {f('poles', 'Poles', 'number of magnetic poles, even (such as 18)')}
-        {f('keVPerKrpm', 'Ke', 'open-circuit line-to-line V (RMS) per 1000 rev/min')}
-        {f('keRefC', 'Ke reference temperature', '°C at which Ke was measured; default 20', { optional: true })}
-        <SelectField
-          name="magnet"
-          label="Magnet material"
-          error={e.magnet}
-          defaultValue={v.magnet ?? 'ndfeb'}
-          options={MAGNET_MATERIALS.map((m) => ({ value: m, label: MAGNET_LABEL[m] }))}
-        />
-        {f('magnetTempCoeffPctPerC', 'Magnet temperature coefficient', '% per °C, negative; blank: the material’s typical value', { optional: true })}
-        {f('phaseOhm', 'Phase resistance', 'Ω per phase (star equivalent) at 20 °C')}
-        {f('phaseMh', 'Phase inductance', 'mH per phase; blank or 0 if unknown', { optional: true })}
-      </fieldset>
-
-      <fieldset className={styles.fieldset} hidden={kind !== 'wind'} disabled={kind !== 'wind'}>
-        <legend>Wind turbine</legend>
-        {f('cutInMs', 'Cut-in wind speed', 'm/s')}
-        {f('cutOutMs', 'Cut-out wind speed', 'm/s, above cut-in')}
-        {f('rotorDiameterM', 'Rotor diameter', 'm')}
-        <div className={`${styles.field} ${styles.wide}`}>
-          <label htmlFor={fieldId('powerCurve')} className={styles.label}>
-            Power curve
-          </label>
-          <textarea
-            id={fieldId('powerCurve')}
-            name="powerCurve"
-            className={`${styles.input} ${styles.textarea}`}
-            defaultValue={v.powerCurve ?? ''}
-            rows={8}
-            spellCheck={false}
-            aria-invalid={e.powerCurve ? true : undefined}
-            aria-describedby={`${fieldId('powerCurve')}-hint${e.powerCurve ? ` ${fieldId('powerCurve')}-error` : ''}`}
-          />
-          {e.powerCurve ? (
-            <span id={`${fieldId('powerCurve')}-error`} className={styles.error}>
-              {e.powerCurve}
-            </span>
-          ) : null}
-          <span id={`${fieldId('powerCurve')}-hint`} className={styles.hint}>
-            One point a line: wind speed in m/s, then power in kW at 1.225 kg/m³, such as “5 1.2”. At least two points, wind speed rising.
-          </span>
-        </div>
-      </fieldset>
-
-      <fieldset className={styles.fieldset} hidden={kind !== 'hydro'} disabled={kind !== 'hydro'}>
-        <legend>Hydro turbine</legend>
-        {f('designHeadM', 'Design head', 'm, net')}
-        {f('designFlowM3s', 'Design flow', 'm³/s')}
-        {f('efficiency', 'Water-to-wire efficiency', 'fraction above 0, at most 1 (such as 0.72)')}
-      </fieldset>
-
-      <fieldset className={styles.fieldset}>
-        <legend>Diagnosis limits (optional)</legend>
-        <p className={styles.fieldsetNote}>Leave blank to use the defaults. They are common practice, not from a standard; change them only with a reason for this machine.</p>
-        {f('diagnosis.keWarnRatio', UNIT_FIELD_LABELS['diagnosis.keWarnRatio']!, LIMIT_HINTS['diagnosis.keWarnRatio'], { optional: true })}
-        {f('diagnosis.keAlarmRatio', UNIT_FIELD_LABELS['diagnosis.keAlarmRatio']!, LIMIT_HINTS['diagnosis.keAlarmRatio'], { optional: true })}
-        {f('diagnosis.unbalanceAlarmPct', UNIT_FIELD_LABELS['diagnosis.unbalanceAlarmPct']!, LIMIT_HINTS['diagnosis.unbalanceAlarmPct'], { optional: true })}
-        {f('diagnosis.speedRatioTolerance', UNIT_FIELD_LABELS['diagnosis.speedRatioTolerance']!, LIMIT_HINTS['diagnosis.speedRatioTolerance'], { optional: true })}
-        {f('diagnosis.minSpeedFraction', UNIT_FIELD_LABELS['diagnosis.minSpeedFraction']!, LIMIT_HINTS['diagnosis.minSpeedFraction'], { optional: true })}
-        {f('diagnosis.minSpeedSpanFraction', UNIT_FIELD_LABELS['diagnosis.minSpeedSpanFraction']!, LIMIT_HINTS['diagnosis.minSpeedSpanFraction'], { optional: true })}
-        {f('diagnosis.minSamples', UNIT_FIELD_LABELS['diagnosis.minSamples']!, LIMIT_HINTS['diagnosis.minSamples'], { optional: true })}
-        {f('diagnosis.maxSpeedRateFractionPerS', UNIT_FIELD_LABELS['diagnosis.maxSpeedRateFractionPerS']!, LIMIT_HINTS['diagnosis.maxSpeedRateFractionPerS'], { optional: true })}
-        {f('diagnosis.windowHours', UNIT_FIELD_LABELS['diagnosis.windowHours']!, LIMIT_HINTS['diagnosis.windowHours'], { optional: true })}
-      </fieldset>
+      <IdentityFields f={f} v={v} e={e} sites={sites} editing={editing} kind={kind} onKind={setKind} />
+      <NameplateFields f={f} v={v} e={e} />
+      <TurbineFields f={f} v={v} e={e} kind={kind} />
+      <LimitFields f={f} />
 
       <div className={styles.actions}>
         <button type="submit" className={styles.primary} disabled={pending}>
