@@ -4,6 +4,7 @@
  */
 import { sql } from 'drizzle-orm';
 import type { Db } from './client';
+import { rowsOf } from './rows';
 
 const PARENT = 'telemetry_samples';
 
@@ -82,10 +83,4 @@ export async function dropPartitionsBefore({ db, cutoffMs }: { db: Db; cutoffMs:
     }
   }
   return dropped;
-}
-
-/** Rows of a `db.execute` result, whichever driver produced it. */
-export function rowsOf<T>(result: unknown): T[] {
-  if (Array.isArray(result)) return result as T[];
-  return ((result as { rows?: T[] }).rows ?? []) as T[];
 }

@@ -1,5 +1,5 @@
 import { useId } from 'react';
-import { formatSiteTime, formatUtc } from './format';
+import { formatSiteTime, formatUtc } from '@/lib/text/format';
 
 /**
  * A time in the site's own zone, shown as a time ("14:05", "2 Dec 14:05"),

@@ -2,9 +2,10 @@
  * Data access for sites and units.
  */
 import { asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
-import { rowsOf, type Db } from '@/db/client';
+import { dbJson, dbNumber, dbNumberOrNull, parseRows, rowsOf, type Db } from '@/db/client';
 import { sites, units, type SiteRow, type UnitRow } from '@/db/schema';
-import type { Nameplate } from '@/lib/contract/nameplate';
+import { z } from 'zod';
+import { diagnosisLimitsSchema, UNIT_KINDS, type Nameplate } from '@/lib/contract/nameplate';
 import { canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
 import { compareStates, OFFLINE_AFTER_MS, unitStateOf, UNIT_STATES, type UnitState, type UnitStateView } from './unit-state';
 
@@ -111,33 +112,32 @@ export interface UnitLatest {
   readonly state: UnitStateView;
 }
 
-interface LatestRow {
-  key: number;
-  id: string;
-  site_id: string;
-  name: string | null;
-  kind: UnitRow['kind'];
-  rated_kw: number;
-  last_sample_ms: number | string | null;
-  verdict: string | null;
-  diagnosed_at_ms: number | string | null;
-  top_severity: string | null;
-  top_code: string | null;
-  top_message: string | null;
-  bucket_ms: number | string | null;
-  kw: number | null;
-  rpm: number | null;
-  volts_ll: number | null;
-  stator_c: number | null;
-  kwh_today: number | string | null;
-  ke_ratio: number | null;
-  ke_ratio_low: number | null;
-  ke_ratio_high: number | null;
-  unbalance_pct: number | null;
-  diagnosis: unknown;
-}
-
-const numOrNull = (v: number | string | null | undefined): number | null => (v === null || v === undefined ? null : Number(v));
+/** The columns of getLatestUnits's statement, parsed (db/rows.ts). */
+const latestRowSchema = z.object({
+  key: dbNumber,
+  id: z.string(),
+  site_id: z.string(),
+  name: z.string().nullable(),
+  kind: z.enum(UNIT_KINDS),
+  rated_kw: dbNumber,
+  last_sample_ms: dbNumberOrNull,
+  verdict: z.string().nullable(),
+  diagnosed_at_ms: dbNumberOrNull,
+  top_severity: z.string().nullable(),
+  top_code: z.string().nullable(),
+  top_message: z.string().nullable(),
+  bucket_ms: dbNumberOrNull,
+  kw: dbNumberOrNull,
+  rpm: dbNumberOrNull,
+  volts_ll: dbNumberOrNull,
+  stator_c: dbNumberOrNull,
+  kwh_today: dbNumberOrNull,
+  ke_ratio: dbNumberOrNull,
+  ke_ratio_low: dbNumberOrNull,
+  ke_ratio_high: dbNumberOrNull,
+  unbalance_pct: dbNumberOrNull,
+  diagnosis: dbJson(diagnosisLimitsSchema.nullable()),
+});
 
 /**
  * Latest state of units (of one site, or of every site the viewer sees): the
@@ -146,7 +146,9 @@ const numOrNull = (v: number | string | null | undefined): number | null => (v =
  */
 async function getLatestUnits({ db, viewer, siteId, nowMs }: { db: Db; viewer: Viewer; siteId?: string; nowMs: number }): Promise<UnitLatest[]> {
   const now = sql`to_timestamp(${nowMs}::float8 / 1000.0)`;
-  const rows = rowsOf<LatestRow>(
+  const rows = parseRows(
+    'latest units',
+    latestRowSchema,
     await db.execute(sql`
       select u.key, u.id, u.site_id, u.name, u.kind::text as kind, u.rated_kw, u.diagnosis,
              (extract(epoch from st.last_sample_ts) * 1000)::float8 as last_sample_ms,
@@ -185,11 +187,11 @@ async function getLatestUnits({ db, viewer, siteId, nowMs }: { db: Db; viewer: V
       order by u.site_id, u.id`),
   );
   return rows.map((r) => {
-    const lastSampleMs = numOrNull(r.last_sample_ms);
-    const bucketMs = numOrNull(r.bucket_ms);
+    const lastSampleMs = r.last_sample_ms;
+    const bucketMs = r.bucket_ms;
     // A rollup older than the offline time is not "now".
     const current = bucketMs !== null && nowMs - bucketMs <= OFFLINE_AFTER_MS + 10 * 60_000;
-    const pick = (v: number | null) => (current ? numOrNull(v) : null);
+    const pick = (v: number | null) => (current ? v : null);
     const health =
       r.verdict === null
         ? undefined
@@ -198,25 +200,25 @@ async function getLatestUnits({ db, viewer, siteId, nowMs }: { db: Db; viewer: V
             findings: r.top_severity === null ? [] : [{ code: r.top_code ?? '', severity: r.top_severity, message: r.top_message ?? '' }],
           };
     return {
-      key: Number(r.key),
+      key: r.key,
       id: r.id,
       siteId: r.site_id,
       name: r.name,
       kind: r.kind,
-      ratedKw: Number(r.rated_kw),
+      ratedKw: r.rated_kw,
       lastSampleMs,
       verdict: r.verdict,
-      diagnosedAtMs: numOrNull(r.diagnosed_at_ms),
+      diagnosedAtMs: r.diagnosed_at_ms,
       kw: pick(r.kw),
       rpm: pick(r.rpm),
       voltsLl: pick(r.volts_ll),
       statorC: pick(r.stator_c),
-      kwhToday: Number(r.kwh_today ?? 0),
-      keRatio: numOrNull(r.ke_ratio),
-      keRatioLow: numOrNull(r.ke_ratio_low),
-      keRatioHigh: numOrNull(r.ke_ratio_high),
-      unbalancePct: numOrNull(r.unbalance_pct),
-      diagnosisLimits: (typeof r.diagnosis === 'string' ? JSON.parse(r.diagnosis) : r.diagnosis) as UnitRow['diagnosis'],
+      kwhToday: r.kwh_today ?? 0,
+      keRatio: r.ke_ratio,
+      keRatioLow: r.ke_ratio_low,
+      keRatioHigh: r.ke_ratio_high,
+      unbalancePct: r.unbalance_pct,
+      diagnosisLimits: r.diagnosis,
       state: unitStateOf({ health, lastSampleMs, nowMs }),
     };
   });
@@ -307,6 +309,8 @@ export interface SiteView {
 /** Hours of the small power chart beside each unit on the site screen. */
 export const SPARK_HOURS = 6;
 
+const sparkRowSchema = z.object({ unit_key: dbNumber, t: dbNumber, kw: dbNumberOrNull });
+
 /** One site's units with their latest state and the last hours of power; rollups only. */
 export async function getSiteView({ db, viewer, siteId, nowMs = Date.now() }: { db: Db; viewer: Viewer; siteId: string; nowMs?: number }): Promise<SiteView | undefined> {
   if (!canSeeSite(viewer, siteId)) return undefined;
@@ -316,7 +320,9 @@ export async function getSiteView({ db, viewer, siteId, nowMs = Date.now() }: { 
   const sparklines: SiteView['sparklines'] = {};
   if (unitList.length > 0) {
     const fromMs = nowMs - SPARK_HOURS * 3_600_000;
-    const rows = rowsOf<{ unit_key: number; t: number | string; kw: number | null }>(
+    const rows = parseRows(
+      'sparklines',
+      sparkRowSchema,
       await db.execute(sql`
         select r.unit_key, (extract(epoch from r.bucket_start) * 1000)::float8 as t, r.kw_sum / nullif(r.kw_count, 0) as kw
         from telemetry_rollups_10m r
@@ -326,7 +332,7 @@ export async function getSiteView({ db, viewer, siteId, nowMs = Date.now() }: { 
     );
     const idByKey = new Map(unitList.map((u) => [u.key, u.id]));
     for (const u of unitList) sparklines[u.id] = [];
-    for (const r of rows) sparklines[idByKey.get(Number(r.unit_key)) as string]?.push({ t: Number(r.t), kw: numOrNull(r.kw) });
+    for (const r of rows) sparklines[idByKey.get(r.unit_key) as string]?.push({ t: r.t, kw: r.kw });
   }
   return { ...site, units: unitList, sparklines, sparkHours: SPARK_HOURS };
 }

@@ -7,6 +7,7 @@
 import { beforeEach, describe, expect, it, vi } from 'vitest';
 import { z } from 'zod';
 import type { Viewer } from '@/lib/auth/viewer';
+import type { ActionState } from './action';
 
 const state = vi.hoisted(() => ({ viewer: undefined as Viewer | undefined }));
 vi.mock('@/lib/request/context', () => ({
@@ -30,7 +31,7 @@ function form(values: Record<string, string>): FormData {
 }
 
 describe('action()', () => {
-  const handler = vi.fn(async ({ input, bound, submitted }: { input: { name: string; count: number }; bound: [string]; submitted: number }) => ({
+  const handler = vi.fn(async ({ input, bound, submitted }: { input: { name: string; count: number }; bound: [string]; submitted: number }): Promise<ActionState> => ({
     submitted,
     done: `${bound[0]}: ${input.name} × ${input.count}`,
   }));
@@ -74,7 +75,7 @@ describe('action()', () => {
 
   it('takes a parse function instead of a schema, and an action without a form', async () => {
     state.viewer = operator;
-    const parsed = action({ allow: canEdit, input: (values) => (values.x === 'ok' ? { ok: true, value: 1 } : { ok: false, fieldErrors: { x: 'not ok' } }) }, async ({ input, submitted }) => ({ submitted, done: String(input) }));
+    const parsed = action({ allow: canEdit, input: (values) => (values.x === 'ok' ? { ok: true, value: 1 } : { ok: false, fieldErrors: { x: 'not ok' } }) }, async ({ input, submitted }): Promise<ActionState> => ({ submitted, done: String(input) }));
     expect(await parsed({ submitted: 0 }, form({ x: 'ok' }))).toEqual({ submitted: 1, done: '1' });
     expect(await parsed({ submitted: 0 }, form({ x: 'no' }))).toEqual({ submitted: 1, values: { x: 'no' }, fieldErrors: { x: 'not ok' } });
     expect(await parsed({ submitted: 0 })).toEqual({ submitted: 1, values: {}, fieldErrors: { x: 'not ok' } });
@@ -82,7 +83,7 @@ describe('action()', () => {
 
   it('leaves files and Next’s own fields out of the values', async () => {
     state.viewer = operator;
-    const seen = action({ allow: canEdit }, async ({ values, submitted }) => ({ submitted, done: JSON.stringify(values) }));
+    const seen = action({ allow: canEdit }, async ({ values, submitted }): Promise<ActionState> => ({ submitted, done: JSON.stringify(values) }));
     const data = form({ a: '1', $ACTION_ID_x: 'y' });
     data.append('file', new File(['x'], 'f.json'));
     expect((await seen({ submitted: 0 }, data)).done).toBe('{"a":"1"}');
@@ -92,7 +93,7 @@ describe('action()', () => {
 describe('publicAction()', () => {
   it('needs nobody signed in and still parses the form', async () => {
     state.viewer = undefined;
-    const open = publicAction({ input: z.object({ email: z.string().min(1, 'Enter your e-mail address.') }) }, async ({ input, submitted }) => ({ submitted, done: input.email }));
+    const open = publicAction({ input: z.object({ email: z.string().min(1, 'Enter your e-mail address.') }) }, async ({ input, submitted }): Promise<ActionState> => ({ submitted, done: input.email }));
     expect(await open({ submitted: 0 }, form({ email: 'a@b.invalid' }))).toEqual({ submitted: 1, done: 'a@b.invalid' });
     expect(await open({ submitted: 4 }, form({ email: '' }))).toEqual({ submitted: 5, values: { email: '' }, fieldErrors: { email: 'Enter your e-mail address.' } });
   });

@@ -3,7 +3,7 @@ import { notFound } from 'next/navigation';
 import { loadDisplayScreen } from '@/lib/fleet/screen';
 import { StateBadge } from '@/app/_components/state-badge';
 import { SiteCard } from '@/app/_components/site-card';
-import { ago, formatEnergyKwh, formatPowerKw } from '@/app/_components/format';
+import { ago, formatEnergyKwh, formatPowerKw } from '@/lib/text/format';
 
 export const dynamic = 'force-dynamic';
 export const metadata: Metadata = { title: 'Display', referrer: 'no-referrer', robots: { index: false, follow: false } };
