@@ -103,112 +103,136 @@ export interface TelemetryDecoderOptions {
 export function createTelemetryDecoder({ retentionDays }: TelemetryDecoderOptions) {
   let nowMs = Date.now();
   const schema = telemetrySampleSchema(() => nowMs);
-  const whole = (payload: string, payloadBytes: number, reason: string): DecodedTelemetry => ({
-    samples: EMPTY_BLOCK,
-    quarantined: [{ sampleIndex: null, payload: boundText(payload, QUARANTINE_PAYLOAD_CHARS, payloadBytes), payloadBytes, reason }],
-    unknownFields: NO_FIELDS,
-  });
 
   function decode(payload: Uint8Array, receivedAtMs: number): DecodedTelemetry {
     nowMs = receivedAtMs;
-    const bytes = payload.byteLength;
-    if (bytes > MAX_PAYLOAD_BYTES) {
-      const head = Buffer.from(payload.buffer, payload.byteOffset, Math.min(bytes, QUARANTINE_PAYLOAD_CHARS)).toString('utf8');
-      return whole(
-        head,
-        bytes,
-        `payload of ${kib(bytes)} is over the ${kib(MAX_PAYLOAD_BYTES)} limit of one message; send fewer samples per message`,
-      );
-    }
-    if (bytes === 0) return whole('', 0, 'payload is empty; expected a JSON sample object or an array of them');
-    let text: string;
-    try {
-      text = utf8.decode(payload);
-    } catch {
-      const head = Buffer.from(payload.buffer, payload.byteOffset, Math.min(bytes, 3000)).toString('base64');
-      return whole(`base64:${head}`, bytes, 'payload is not UTF-8 text; expected a JSON sample object or an array of them');
-    }
-    const depth = jsonDepth(text);
-    if (depth > MAX_JSON_DEPTH) {
-      return whole(
-        text,
-        bytes,
-        `payload nests more than ${MAX_JSON_DEPTH} levels deep; a sample is a flat JSON object and a payload one sample or an array of them`,
-      );
-    }
-    let parsed: unknown;
-    try {
-      parsed = JSON.parse(text);
-    } catch (error) {
-      return whole(text, bytes, `payload is not JSON (${(error as Error).message}); expected a sample object or an array of them`);
-    }
-    let raws: unknown[];
-    let single = false;
-    if (Array.isArray(parsed)) {
-      if (parsed.length === 0) return whole(text, bytes, 'payload is an empty array: it holds no samples');
-      raws = parsed;
-    } else if (parsed !== null && typeof parsed === 'object') {
-      raws = [parsed];
-      single = true;
-    } else {
-      return whole(text, bytes, `payload must be a JSON sample object or an array of them, got ${describeValue(parsed)}`);
-    }
-
-    const oldestMs = receivedAtMs - retentionDays * MS_PER_DAY;
-    const samples = createSampleBlock(raws.length);
-    let quarantined: QuarantineEntry[] = NO_ENTRIES;
-    let unknown: Set<string> | undefined;
-    // Repeated times: a scan of the few kept so far, a map for a long array.
-    const seenTs = raws.length > 32 ? new Map<number, number>() : undefined;
-    /** Index in the payload of each sample kept in the block. */
-    const keptIndex: number[] = [];
-    const firstWithTs = (ts: number): number | undefined => {
-      if (seenTs) return seenTs.get(ts);
-      for (let k = 0; k < samples.count; k++) if (samples.ts[k] === ts) return keptIndex[k];
-      return undefined;
-    };
-    const rejectSample = (index: number, raw: unknown, reason: string) => {
-      const sampleText = single ? text : (JSON.stringify(raw) ?? String(raw));
-      if (quarantined === NO_ENTRIES) quarantined = [];
-      quarantined.push({
-        sampleIndex: single ? null : index,
-        payload: boundText(sampleText, single ? QUARANTINE_PAYLOAD_CHARS : QUARANTINE_SAMPLE_CHARS),
-        payloadBytes: single ? bytes : Buffer.byteLength(sampleText),
-        reason,
-      });
-    };
-    for (let index = 0; index < raws.length; index++) {
-      const raw = raws[index];
-      const result = parseTelemetrySample(raw, schema);
-      if (!result.ok) {
-        rejectSample(index, raw, result.problems.join('; '));
-        continue;
-      }
-      const sample = result.sample;
-      // The column keeps whole milliseconds; rounding here keeps keys and rows alike.
-      sample.ts = Math.round(sample.ts);
-      if (sample.ts < oldestMs) {
-        rejectSample(
-          index,
-          raw,
-          `ts: ${new Date(sample.ts).toISOString()} is older than the ${retentionDays}-day retention (RETENTION_DAYS); it would be deleted at once`,
-        );
-        continue;
-      }
-      const first = firstWithTs(sample.ts);
-      if (first !== undefined) {
-        rejectSample(index, raw, `ts: ${new Date(sample.ts).toISOString()} repeats sample [${first}] of this message; only the first was kept`);
-        continue;
-      }
-      seenTs?.set(sample.ts, index);
-      keptIndex.push(index);
-      for (const field of result.unknownFields) (unknown ??= new Set()).add(field);
-      appendSample(samples, sample);
-    }
-    return { samples, quarantined, unknownFields: unknown ? [...unknown] : NO_FIELDS };
+    const read = readSamplesPayload(payload);
+    if (!read.ok) return read.decoded;
+    return validateSamples(read, { schema, oldestMs: receivedAtMs - retentionDays * MS_PER_DAY, retentionDays });
   }
 
   return { decode };
+}
+
+/** A payload quarantined whole, with why. */
+function wholePayload(payload: string, payloadBytes: number, reason: string): DecodedTelemetry {
+  return {
+    samples: EMPTY_BLOCK,
+    quarantined: [{ sampleIndex: null, payload: boundText(payload, QUARANTINE_PAYLOAD_CHARS, payloadBytes), payloadBytes, reason }],
+    unknownFields: NO_FIELDS,
+  };
+}
+
+/** The answer of {@link readSamplesPayload} for a payload of `bytes` refused whole. */
+function refused(bytes: number, text: string, reason: string): { ok: false; decoded: DecodedTelemetry } {
+  return { ok: false, decoded: wholePayload(text, bytes, reason) };
+}
+
+/** A payload read as JSON: its samples still unchecked, `single` when it was one object rather than an array. */
+interface ReadPayload {
+  ok: true;
+  text: string;
+  bytes: number;
+  raws: unknown[];
+  single: boolean;
+}
+
+/** Reads a payload as JSON holding one sample object or an array of them; anything else is quarantined whole. */
+function readSamplesPayload(payload: Uint8Array): ReadPayload | { ok: false; decoded: DecodedTelemetry } {
+  const bytes = payload.byteLength;
+  if (bytes > MAX_PAYLOAD_BYTES) {
+    const head = Buffer.from(payload.buffer, payload.byteOffset, Math.min(bytes, QUARANTINE_PAYLOAD_CHARS)).toString('utf8');
+    return refused(bytes, head, `payload of ${kib(bytes)} is over the ${kib(MAX_PAYLOAD_BYTES)} limit of one message; send fewer samples per message`);
+  }
+  if (bytes === 0) return refused(bytes, '', 'payload is empty; expected a JSON sample object or an array of them');
+  let text: string;
+  try {
+    text = utf8.decode(payload);
+  } catch {
+    const head = Buffer.from(payload.buffer, payload.byteOffset, Math.min(bytes, 3000)).toString('base64');
+    return refused(bytes, `base64:${head}`, 'payload is not UTF-8 text; expected a JSON sample object or an array of them');
+  }
+  if (jsonDepth(text) > MAX_JSON_DEPTH) {
+    return refused(
+      bytes,
+      text,
+      `payload nests more than ${MAX_JSON_DEPTH} levels deep; a sample is a flat JSON object and a payload one sample or an array of them`,
+    );
+  }
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(text);
+  } catch (error) {
+    return refused(bytes, text, `payload is not JSON (${(error as Error).message}); expected a sample object or an array of them`);
+  }
+  if (Array.isArray(parsed)) {
+    if (parsed.length === 0) return refused(bytes, text, 'payload is an empty array: it holds no samples');
+    return { ok: true, text, bytes, raws: parsed, single: false };
+  }
+  if (parsed !== null && typeof parsed === 'object') return { ok: true, text, bytes, raws: [parsed], single: true };
+  return refused(bytes, text, `payload must be a JSON sample object or an array of them, got ${describeValue(parsed)}`);
+}
+
+/**
+ * Checks each sample of a read payload against the contract schema, the
+ * retention and the samples before it in the message (a time may appear
+ * once); a bad sample is quarantined on its own, its good neighbours kept.
+ */
+function validateSamples(
+  { text, bytes, raws, single }: ReadPayload,
+  { schema, oldestMs, retentionDays }: { schema: ReturnType<typeof telemetrySampleSchema>; oldestMs: number; retentionDays: number },
+): DecodedTelemetry {
+  const samples = createSampleBlock(raws.length);
+  let quarantined: QuarantineEntry[] = NO_ENTRIES;
+  let unknown: Set<string> | undefined;
+  // Repeated times: a scan of the few kept so far, a map for a long array.
+  const seenTs = raws.length > 32 ? new Map<number, number>() : undefined;
+  /** Index in the payload of each sample kept in the block. */
+  const keptIndex: number[] = [];
+  const firstWithTs = (ts: number): number | undefined => {
+    if (seenTs) return seenTs.get(ts);
+    for (let k = 0; k < samples.count; k++) if (samples.ts[k] === ts) return keptIndex[k];
+    return undefined;
+  };
+  const rejectSample = (index: number, raw: unknown, reason: string) => {
+    const sampleText = single ? text : (JSON.stringify(raw) ?? String(raw));
+    if (quarantined === NO_ENTRIES) quarantined = [];
+    quarantined.push({
+      sampleIndex: single ? null : index,
+      payload: boundText(sampleText, single ? QUARANTINE_PAYLOAD_CHARS : QUARANTINE_SAMPLE_CHARS),
+      payloadBytes: single ? bytes : Buffer.byteLength(sampleText),
+      reason,
+    });
+  };
+  for (let index = 0; index < raws.length; index++) {
+    const raw = raws[index];
+    const result = parseTelemetrySample(raw, schema);
+    if (!result.ok) {
+      rejectSample(index, raw, result.problems.join('; '));
+      continue;
+    }
+    const sample = result.sample;
+    // The column keeps whole milliseconds; rounding here keeps keys and rows alike.
+    sample.ts = Math.round(sample.ts);
+    if (sample.ts < oldestMs) {
+      rejectSample(
+        index,
+        raw,
+        `ts: ${new Date(sample.ts).toISOString()} is older than the ${retentionDays}-day retention (RETENTION_DAYS); it would be deleted at once`,
+      );
+      continue;
+    }
+    const first = firstWithTs(sample.ts);
+    if (first !== undefined) {
+      rejectSample(index, raw, `ts: ${new Date(sample.ts).toISOString()} repeats sample [${first}] of this message; only the first was kept`);
+      continue;
+    }
+    seenTs?.set(sample.ts, index);
+    keptIndex.push(index);
+    for (const field of result.unknownFields) (unknown ??= new Set()).add(field);
+    appendSample(samples, sample);
+  }
+  return { samples, quarantined, unknownFields: unknown ? [...unknown] : NO_FIELDS };
 }
 
 export type TelemetryDecoder = ReturnType<typeof createTelemetryDecoder>;

@@ -185,14 +185,7 @@ const counts = (aTs: number, bTs: number) => bTs - aTs > 0 && bTs - aTs <= MAX_C
  * Adds `sign` × the interval from (aTs, aKw) to (bTs, bKw) to the ten-minute
  * buckets it spans, in proportion to the time it spends in each.
  */
-function addInterval(
-  aTs: number,
-  aKw: number,
-  bTs: number,
-  bKw: number,
-  sign: 1 | -1,
-  bucketOf: (start: number, placeholderTs: number) => RollupDelta,
-): void {
+function addInterval(aTs: number, aKw: number, bTs: number, bKw: number, sign: 1 | -1, bucketOf: BucketOf): void {
   const meanKw = (aKw + bKw) / 2;
   let start = aTs;
   while (start < bTs) {
@@ -232,7 +225,7 @@ export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, 
   daily: RollupDelta[];
 } {
   const tenMinute = new Map<number, RollupDelta>();
-  const bucketOf = (start: number, placeholderTs: number) => {
+  const bucketOf: BucketOf = (start, placeholderTs) => {
     let delta = tenMinute.get(start);
     if (!delta) {
       delta = emptyDelta(unitKey, start, placeholderTs);
@@ -240,7 +233,19 @@ export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, 
     }
     return delta;
   };
+  const freshKw = addStatistics(rows, from, to, bucketOf);
+  if (freshKw > 0) addEnergyChange(rows, from, to, stored, bucketOf);
+  return { tenMinute: [...tenMinute.values()], daily: dailyOf(unitKey, tenMinute.values()) };
+}
 
+/** The ten-minute delta of the bucket starting at `start`, made (with `placeholderTs` as its times) when new. */
+type BucketOf = (start: number, placeholderTs: number) => RollupDelta;
+
+/**
+ * Adds the sample counts, times and statistics of rows `from` to `to` to
+ * their ten-minute deltas; returns how many of those rows have `kw`.
+ */
+function addStatistics(rows: RollupRows, from: number, to: number, bucketOf: BucketOf): number {
   // Rows are in time order, so each bucket's rows come together: their statistics are
   // gathered in an accumulator and handed to the bucket's delta when the bucket ends.
   const columns = statColumns(rows);
@@ -284,67 +289,76 @@ export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, 
     if (rows.kw[r] === rows.kw[r]) freshKw++;
   }
   endBucket();
+  return freshKw;
+}
 
-  if (freshKw > 0) {
-    // The stored series and the series with the new points merged in differ only in
-    // intervals that touch a new point (added) and the stored intervals a new point
-    // now splits (removed); every other interval is in both and changes nothing.
-    // The two series are walked together, point by point, without building the merged one.
-    const old = sortedUnique(stored);
-    let i = 0;
-    let r = from;
-    const nextFresh = () => {
-      while (r < to && rows.kw[r] !== rows.kw[r]) r++;
-    };
-    nextFresh();
-    let havePrev = false;
-    let prevTs = 0;
-    let prevKw = 0;
-    let prevFresh = false;
-    let haveLastOld = false;
-    let lastOldTs = 0;
-    let lastOldKw = 0;
-    let splitSinceLastOld = false;
-    while (i < old.length || r < to) {
-      const o = old[i];
-      let ts: number;
-      let kw: number;
-      let fresh: boolean;
-      if (r >= to || (o !== undefined && o.ts <= rows.ts[r]!)) {
-        // A stored point and a new one at the same time: the insert skipped it, keep the stored.
-        if (r < to && o!.ts === rows.ts[r]) {
-          r++;
-          nextFresh();
-        }
-        ts = o!.ts;
-        kw = o!.kw;
-        fresh = false;
-        i++;
-      } else {
-        ts = rows.ts[r]!;
-        kw = rows.kw[r]!;
-        fresh = true;
+/**
+ * Adds to the ten-minute deltas the energy and covered time that inserting
+ * rows `from` to `to` changes, given the `stored` points around them.
+ *
+ * The stored series and the series with the new points merged in differ only in
+ * intervals that touch a new point (added) and the stored intervals a new point
+ * now splits (removed); every other interval is in both and changes nothing.
+ * The two series are walked together, point by point, without building the merged one.
+ */
+function addEnergyChange(rows: RollupRows, from: number, to: number, stored: readonly EnergyPoint[], bucketOf: BucketOf): void {
+  const old = sortedUnique(stored);
+  let i = 0;
+  let r = from;
+  const nextFresh = () => {
+    while (r < to && rows.kw[r] !== rows.kw[r]) r++;
+  };
+  nextFresh();
+  let havePrev = false;
+  let prevTs = 0;
+  let prevKw = 0;
+  let prevFresh = false;
+  let haveLastOld = false;
+  let lastOldTs = 0;
+  let lastOldKw = 0;
+  let splitSinceLastOld = false;
+  while (i < old.length || r < to) {
+    const o = old[i];
+    let ts: number;
+    let kw: number;
+    let fresh: boolean;
+    if (r >= to || (o !== undefined && o.ts <= rows.ts[r]!)) {
+      // A stored point and a new one at the same time: the insert skipped it, keep the stored.
+      if (r < to && o!.ts === rows.ts[r]) {
         r++;
         nextFresh();
-        if (havePrev && prevTs === ts) continue;
       }
-      if (havePrev && (prevFresh || fresh) && counts(prevTs, ts)) addInterval(prevTs, prevKw, ts, kw, 1, bucketOf);
-      if (!fresh) {
-        if (haveLastOld && splitSinceLastOld && counts(lastOldTs, ts)) addInterval(lastOldTs, lastOldKw, ts, kw, -1, bucketOf);
-        haveLastOld = true;
-        lastOldTs = ts;
-        lastOldKw = kw;
-        splitSinceLastOld = false;
-      } else splitSinceLastOld = true;
-      havePrev = true;
-      prevTs = ts;
-      prevKw = kw;
-      prevFresh = fresh;
+      ts = o!.ts;
+      kw = o!.kw;
+      fresh = false;
+      i++;
+    } else {
+      ts = rows.ts[r]!;
+      kw = rows.kw[r]!;
+      fresh = true;
+      r++;
+      nextFresh();
+      if (havePrev && prevTs === ts) continue;
     }
+    if (havePrev && (prevFresh || fresh) && counts(prevTs, ts)) addInterval(prevTs, prevKw, ts, kw, 1, bucketOf);
+    if (!fresh) {
+      if (haveLastOld && splitSinceLastOld && counts(lastOldTs, ts)) addInterval(lastOldTs, lastOldKw, ts, kw, -1, bucketOf);
+      haveLastOld = true;
+      lastOldTs = ts;
+      lastOldKw = kw;
+      splitSinceLastOld = false;
+    } else splitSinceLastOld = true;
+    havePrev = true;
+    prevTs = ts;
+    prevKw = kw;
+    prevFresh = fresh;
   }
+}
 
+/** The daily deltas: the ten-minute deltas summed by day. */
+function dailyOf(unitKey: number, tenMinute: Iterable<RollupDelta>): RollupDelta[] {
   const daily = new Map<number, RollupDelta>();
-  for (const d of tenMinute.values()) {
+  for (const d of tenMinute) {
     const day = bucketStart(d.bucketStartMs, DAY_MS);
     let into = daily.get(day);
     if (!into) {
@@ -360,5 +374,5 @@ export function computeRollupDeltas({ unitKey, rows, from = 0, to = rows.count, 
     into.kwh += d.kwh;
     for (const name of STAT_NAMES) mergeStat(into[name], d[name]);
   }
-  return { tenMinute: [...tenMinute.values()], daily: [...daily.values()] };
+  return [...daily.values()];
 }

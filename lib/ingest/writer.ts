@@ -16,10 +16,11 @@ import {
   type PresenceUpdate,
   type QuarantineRowInput,
   type SampleRowRefs,
+  type StoredAround,
   type UnitEntry,
   type UnitSeen,
 } from './queries';
-import { appendRollupRow, computeRollupDeltas, createRollupRows, type RollupDelta } from './rollups';
+import { appendRollupRow, computeRollupDeltas, createRollupRows, type RollupDelta, type RollupRows } from './rollups';
 import type { SampleBlock } from './sample-block';
 import type { IngestDatabase, SqlRunner } from './sql';
 import { pairKey, type UnitDirectory } from './unit-directory';
@@ -280,6 +281,11 @@ export async function prepareBatch({ directory, messages }: { directory: UnitDir
   };
 }
 
+/** The message block, unit key and time of a row of a prepared batch (see `PreparedBatch.refs`). */
+const refBlock = (batch: PreparedBatch, ref: number) => batch.messages[Math.floor(ref / MAX_SAMPLES_PER_MESSAGE)]!.samples;
+const refUnit = (batch: PreparedBatch, ref: number) => batch.unitOfMessage[Math.floor(ref / MAX_SAMPLES_PER_MESSAGE)]!;
+const refTs = (batch: PreparedBatch, ref: number) => refBlock(batch, ref).ts[ref % MAX_SAMPLES_PER_MESSAGE]!;
+
 /**
  * Writes a prepared batch in one transaction. Throws when the database
  * refuses or cannot be reached; nothing of the batch is then stored.
@@ -294,23 +300,12 @@ export async function writePrepared({
   /** Write samples by INSERT rather than COPY (a retry after a refusal: INSERT reports why). */
   byInsert?: boolean;
 }): Promise<BatchResult> {
-  const { messages, quarantine, presenceByUnit, seen, unitByKey, unknownFieldsByUnit, refs, unitOfMessage, sampledUnits, minTs, maxTs } = batch;
+  const { quarantine, presenceByUnit, seen, unitByKey, unknownFieldsByUnit, refs, sampledUnits, minTs, maxTs } = batch;
   const phases: Record<string, number> = { ...batch.phases };
   const phase = phaseClock(phases);
-  const blockOf = (ref: number) => messages[Math.floor(ref / MAX_SAMPLES_PER_MESSAGE)]!.samples;
-  const unitOf = (ref: number) => unitOfMessage[Math.floor(ref / MAX_SAMPLES_PER_MESSAGE)]!;
-  const tsOf = (ref: number) => blockOf(ref).ts[ref % MAX_SAMPLES_PER_MESSAGE]!;
   if (refs.length > 0) await ensureMonthlyPartitions({ db: database.db(), fromMs: minTs, toMs: maxTs });
   phase('partitions');
-  // One window per unit over all its new samples (refs are sorted by unit, then time).
-  const windows: EnergyWindow[] = [];
-  for (let r = 0; r < refs.length; ) {
-    const unitKey = unitOf(refs[r]!);
-    const fromMs = tsOf(refs[r]!);
-    while (r + 1 < refs.length && unitOf(refs[r + 1]!) === unitKey) r++;
-    windows.push({ unitKey, fromMs, toMs: tsOf(refs[r]!) });
-    r++;
-  }
+  const windows = energyWindowsOf(batch);
 
   const result = await database.transaction(async (tx) => {
     // The lock and the read go out together (one round trip on PostgreSQL); the server takes the
@@ -321,40 +316,11 @@ export async function writePrepared({
     ] as const);
     phase('read');
     // What is already stored is a duplicate (a redelivery): only the rest is written.
-    const fresh = refs.filter((ref) => !stored.get(unitOf(ref))?.existing.has(tsOf(ref)));
-    const rows: SampleRowRefs = {
-      count: fresh.length,
-      unitKeys: new Int32Array(fresh.length),
-      blocks: new Array<SampleBlock>(fresh.length),
-      index: new Int32Array(fresh.length),
-    };
-    // Rows in `fresh` order: by unit, then time, as the rollups want them.
-    const rollupRows = createRollupRows(fresh.length);
-    let newestTsMs: number | undefined;
-    fresh.forEach((ref, r) => {
-      const block = blockOf(ref);
-      const i = ref % MAX_SAMPLES_PER_MESSAGE;
-      const unitKey = unitOf(ref);
-      const ts = block.ts[i]!;
-      rows.unitKeys[r] = unitKey;
-      rows.blocks[r] = block;
-      rows.index[r] = i;
-      appendRollupRow(rollupRows, block, i, unitByKey.get(unitKey)!.kind);
-      if (newestTsMs === undefined || ts > newestTsMs) newestTsMs = ts;
-    });
+    const fresh = refs.filter((ref) => !stored.get(refUnit(batch, ref))?.existing.has(refTs(batch, ref)));
+    const { rows, rollupRows, newestTsMs } = freshRowsOf(batch, fresh);
     phase('columns');
     // The deltas are worked out before the samples go out: what they need is known.
-    const tenMinute: RollupDelta[] = [];
-    const daily: RollupDelta[] = [];
-    for (let from = 0; from < fresh.length; ) {
-      const unitKey = rows.unitKeys[from]!;
-      let to = from + 1;
-      while (to < fresh.length && rows.unitKeys[to] === unitKey) to++;
-      const deltas = computeRollupDeltas({ unitKey, rows: rollupRows, from, to, stored: stored.get(unitKey)?.energy ?? [] });
-      for (const d of deltas.tenMinute) tenMinute.push(d);
-      for (const d of deltas.daily) daily.push(d);
-      from = to;
-    }
+    const { tenMinute, daily } = rollupDeltasOf(rows, rollupRows, stored);
     phase('deltas');
     await writeNewSamples({ tx, rows, byInsert });
     phase('samples');
@@ -386,4 +352,63 @@ export async function writePrepared({
     newestTsMs: result.newestTsMs,
     phases,
   };
+}
+
+/** One window per unit over all its new samples (refs are sorted by unit, then time). */
+function energyWindowsOf(batch: PreparedBatch): EnergyWindow[] {
+  const { refs } = batch;
+  const windows: EnergyWindow[] = [];
+  for (let r = 0; r < refs.length; ) {
+    const unitKey = refUnit(batch, refs[r]!);
+    const fromMs = refTs(batch, refs[r]!);
+    while (r + 1 < refs.length && refUnit(batch, refs[r + 1]!) === unitKey) r++;
+    windows.push({ unitKey, fromMs, toMs: refTs(batch, refs[r]!) });
+    r++;
+  }
+  return windows;
+}
+
+/** The rows to write (`fresh` of the batch's refs) for the samples table and for the rollups, and the newest time among them. */
+function freshRowsOf(batch: PreparedBatch, fresh: readonly number[]): { rows: SampleRowRefs; rollupRows: RollupRows; newestTsMs?: number } {
+  const rows: SampleRowRefs = {
+    count: fresh.length,
+    unitKeys: new Int32Array(fresh.length),
+    blocks: new Array<SampleBlock>(fresh.length),
+    index: new Int32Array(fresh.length),
+  };
+  // Rows in `fresh` order: by unit, then time, as the rollups want them.
+  const rollupRows = createRollupRows(fresh.length);
+  let newestTsMs: number | undefined;
+  fresh.forEach((ref, r) => {
+    const block = refBlock(batch, ref);
+    const i = ref % MAX_SAMPLES_PER_MESSAGE;
+    const unitKey = refUnit(batch, ref);
+    const ts = block.ts[i]!;
+    rows.unitKeys[r] = unitKey;
+    rows.blocks[r] = block;
+    rows.index[r] = i;
+    appendRollupRow(rollupRows, block, i, batch.unitByKey.get(unitKey)!.kind);
+    if (newestTsMs === undefined || ts > newestTsMs) newestTsMs = ts;
+  });
+  return { rows, rollupRows, newestTsMs };
+}
+
+/** The ten-minute and daily rollup deltas of the rows to write, unit by unit, against what is stored around them. */
+function rollupDeltasOf(
+  rows: SampleRowRefs,
+  rollupRows: RollupRows,
+  stored: ReadonlyMap<number, StoredAround>,
+): { tenMinute: RollupDelta[]; daily: RollupDelta[] } {
+  const tenMinute: RollupDelta[] = [];
+  const daily: RollupDelta[] = [];
+  for (let from = 0; from < rows.count; ) {
+    const unitKey = rows.unitKeys[from]!;
+    let to = from + 1;
+    while (to < rows.count && rows.unitKeys[to] === unitKey) to++;
+    const deltas = computeRollupDeltas({ unitKey, rows: rollupRows, from, to, stored: stored.get(unitKey)?.energy ?? [] });
+    for (const d of deltas.tenMinute) tenMinute.push(d);
+    for (const d of deltas.daily) daily.push(d);
+    from = to;
+  }
+  return { tenMinute, daily };
 }
