@@ -8,7 +8,7 @@
  */
 import type { DiagnosisLimits, MagnetMaterial } from '@/lib/contract/nameplate';
 import { fitTrack, type KeFit } from './ke-fit';
-import { resolveLimits, type ResolvedLimits } from './limits';
+import { resolveLimits, unbalanceIsAlarm, type ResolvedLimits } from './limits';
 import { overspeedRun, type OverspeedRun } from './overspeed-run';
 import { SampleColumns, type DiagnosisSample } from './sample-columns';
 import { medianSpeedRatio, selectTrack, timeOrder, usedTimeRange, type Track, type TrackCounts } from './track';
@@ -120,7 +120,7 @@ export function verdictOf(p: {
 }): Verdict {
   if (p.insufficient) return 'insufficient-data';
   if (p.sensorFault) return 'speed-sensor-fault';
-  if (p.unbalancePct !== undefined && p.unbalancePct > p.limits.unbalanceAlarmPct) return 'shorted-turns';
+  if (unbalanceIsAlarm(p.unbalancePct, p.limits)) return 'shorted-turns';
   if (p.keRatio !== undefined && p.keRatio < p.limits.keAlarmRatio) return 'demagnetised';
   return 'healthy';
 }

@@ -93,18 +93,7 @@ export function keTrend(history: readonly KeHistoryPoint[], options: KeTrendOpti
   if (!(thresholdRatio > 0)) throw new RangeError(`thresholdRatio must be above 0, got ${thresholdRatio}`);
   if (!Number.isInteger(minDays) || minDays < 3) throw new RangeError(`minDays must be a whole number of at least 3, got ${minDays}`);
 
-  // One median per UTC day.
-  const byDay = new Map<number, number[]>();
-  for (const p of history) {
-    if (p.keRatio === null || !Number.isFinite(p.keRatio) || !Number.isFinite(p.tsMs)) continue;
-    const day = Math.floor(p.tsMs / DAY_MS);
-    const list = byDay.get(day);
-    if (list) list.push(p.keRatio);
-    else byDay.set(day, [p.keRatio]);
-  }
-  const dayKeys = [...byDay.keys()].sort((a, b) => a - b);
-  const x = dayKeys.map((d) => d + 0.5);
-  const y = dayKeys.map((d) => median(byDay.get(d) as number[]) as number);
+  const { x, y } = dailyMedians(history);
   const days = x.length;
   const spanDays = days > 0 ? (x[days - 1] as number) - (x[0] as number) : 0;
   const empty: KeTrend = {
@@ -133,20 +122,7 @@ export function keTrend(history: readonly KeHistoryPoint[], options: KeTrendOpti
 
   let ewma = y[0] as number;
   for (let i = 1; i < days; i++) ewma = EWMA_LAMBDA * (y[i] as number) + (1 - EWMA_LAMBDA) * ewma;
-
-  const baseCount = Math.max(3, x.filter((d) => d - (x[0] as number) < baselineDays).length);
-  const baseline = median(y.slice(0, baseCount)) as number;
-  const diffs = y.slice(1).map((v, i) => Math.abs(v - (y[i] as number)));
-  const sigma = Math.max(MIN_SIGMA, ((median(diffs) ?? 0) * MAD_TO_SIGMA) / Math.SQRT2);
-  let cusum = 0;
-  let cusumAlarmMs: number | undefined;
-  for (let i = baseCount; i < days; i++) {
-    cusum = Math.max(0, cusum + (baseline - CUSUM_K_SIGMA * sigma) - (y[i] as number));
-    if (cusum > CUSUM_H_SIGMA * sigma) {
-      cusumAlarmMs = (x[i] as number) * DAY_MS;
-      break;
-    }
-  }
+  const { baseline, cusumAlarmMs } = lowerCusum(x, y, baselineDays);
 
   const slopeMonth = toMonth(fit.slope) as number;
   const significant = fit.high !== undefined && fit.high < 0;
@@ -170,4 +146,37 @@ export function keTrend(history: readonly KeHistoryPoint[], options: KeTrendOpti
     crossingEarliestMs: declining ? crossingAt(fit.low) : undefined,
     crossingLatestMs: declining ? crossingAt(fit.high) : undefined,
   };
+}
+
+/** One median Ke ratio per UTC day, days in order: x the day's middle (days since 1970), y its median. */
+function dailyMedians(history: readonly KeHistoryPoint[]): { x: number[]; y: number[] } {
+  const byDay = new Map<number, number[]>();
+  for (const p of history) {
+    if (p.keRatio === null || !Number.isFinite(p.keRatio) || !Number.isFinite(p.tsMs)) continue;
+    const day = Math.floor(p.tsMs / DAY_MS);
+    const list = byDay.get(day);
+    if (list) list.push(p.keRatio);
+    else byDay.set(day, [p.keRatio]);
+  }
+  const dayKeys = [...byDay.keys()].sort((a, b) => a - b);
+  return { x: dayKeys.map((d) => d + 0.5), y: dayKeys.map((d) => median(byDay.get(d) as number[]) as number) };
+}
+
+/**
+ * A lower one-sided CUSUM of the daily medians against the median of the
+ * first `baselineDays` (at least three days), σ from the day-to-day
+ * differences: the first day it passes the decision interval, epoch ms.
+ */
+function lowerCusum(x: readonly number[], y: readonly number[], baselineDays: number): { baseline: number; cusumAlarmMs: number | undefined } {
+  const days = x.length;
+  const baseCount = Math.max(3, x.filter((d) => d - (x[0] as number) < baselineDays).length);
+  const baseline = median(y.slice(0, baseCount)) as number;
+  const diffs = y.slice(1).map((v, i) => Math.abs(v - (y[i] as number)));
+  const sigma = Math.max(MIN_SIGMA, ((median(diffs) ?? 0) * MAD_TO_SIGMA) / Math.SQRT2);
+  let cusum = 0;
+  for (let i = baseCount; i < days; i++) {
+    cusum = Math.max(0, cusum + (baseline - CUSUM_K_SIGMA * sigma) - (y[i] as number));
+    if (cusum > CUSUM_H_SIGMA * sigma) return { baseline, cusumAlarmMs: (x[i] as number) * DAY_MS };
+  }
+  return { baseline, cusumAlarmMs: undefined };
 }

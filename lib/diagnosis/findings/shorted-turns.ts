@@ -1,5 +1,6 @@
 /** The findings of the line-voltage unbalance: shorted turns suspected, a normal unbalance, or none to judge. */
 import type { Judgement } from '@/lib/diagnosis/judge';
+import { unbalanceIsAlarm } from '@/lib/diagnosis/limits';
 import { finding, num, type Finding } from './finding';
 
 /** The Ke ratio of each phase, naming the weakest; empty without all three lines. */
@@ -19,7 +20,7 @@ function phaseNote(j: Judgement): string {
  */
 export function shortedTurnsFinding(j: Judgement): Finding | undefined {
   const pct = j.fit.unbalancePct;
-  if (pct === undefined || j.insufficient || !(pct > j.limits.unbalanceAlarmPct)) return undefined;
+  if (pct === undefined || j.insufficient || !unbalanceIsAlarm(pct, j.limits)) return undefined;
   const negativeSequencePct = j.fit.negativeSequencePct;
   return finding(
     'shorted-turns',
@@ -43,7 +44,7 @@ export function shortedTurnsFinding(j: Judgement): Finding | undefined {
  */
 export function unbalanceNormalFinding(j: Judgement): Finding | undefined {
   const pct = j.fit.unbalancePct;
-  if (pct === undefined || j.insufficient || pct > j.limits.unbalanceAlarmPct) return undefined;
+  if (pct === undefined || j.insufficient || unbalanceIsAlarm(pct, j.limits)) return undefined;
   return finding(
     'unbalance-normal',
     'info',
