@@ -16,7 +16,7 @@ import * as schema from './schema';
 import { acquireDataDirLock } from './lock';
 import { ensureMonthlyPartitions, monthStartMs, nextMonthStartMs } from './partitions';
 
-export { dbJson, dbNumber, dbNumberOrNull, parseRows, rowsOf } from './rows';
+export { dbJson, dbNumber, dbNumberOrNull, dbTime, parseRows, rowsOf } from './rows';
 
 export type Schema = typeof schema;
 /** A drizzle database over either driver. */

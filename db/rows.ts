@@ -24,6 +24,9 @@ export const dbNumber = z.union([z.number(), z.string().regex(/^-?\d+(\.\d+)?(e[
 /** A nullable number column. */
 export const dbNumberOrNull = dbNumber.nullable();
 
+/** A timestamptz column: a Date on postgres-js, text on some PGlite paths. */
+export const dbTime = z.union([z.date(), z.string(), z.number()]).transform((v) => (v instanceof Date ? v : new Date(v)));
+
 /** A jsonb column checked by `schema`: parsed JSON on postgres-js, text on some PGlite paths. */
 export function dbJson<S extends z.ZodType>(schema: S) {
   return z.preprocess((v) => (typeof v === 'string' ? JSON.parse(v) : v), schema);

@@ -6,7 +6,8 @@
  * from a cursor, and the day's counts read at most {@link DAY_COUNT_CAP} rows.
  */
 import { desc, sql, type SQL } from 'drizzle-orm';
-import { rowsOf, type Db } from '@/db/client';
+import { z } from 'zod';
+import { dbNumber, dbNumberOrNull, dbTime, parseRows, rowsOf, type Db } from '@/db/client';
 import { quarantine } from '@/db/schema';
 import { siteFilter, type Viewer } from '@/lib/auth/viewer';
 
@@ -58,18 +59,28 @@ function whereOf(parts: SQL[]): SQL {
   return parts.length === 0 ? sql`true` : sql.join(parts, sql` and `);
 }
 
-interface Row {
-  id: string | number;
-  received_at: string | Date;
-  topic: string;
-  site_id: string | null;
-  unit_id: string | null;
-  timezone: string | null;
-  sample_index: number | null;
-  payload: string;
-  payload_bytes: number;
-  reason: string;
-}
+/** The columns of a page's statement, parsed (db/rows.ts). */
+const entryRowSchema = z.object({
+  id: dbNumber,
+  received_at: dbTime,
+  topic: z.string(),
+  site_id: z.string().nullable(),
+  unit_id: z.string().nullable(),
+  timezone: z.string().nullable(),
+  sample_index: dbNumberOrNull,
+  payload: z.string(),
+  payload_bytes: dbNumber,
+  reason: z.string(),
+});
+
+const unitCountRowSchema = z.object({
+  site_id: z.string().nullable(),
+  unit_id: z.string().nullable(),
+  n: dbNumber,
+  total: dbNumber,
+  last_at: dbTime,
+  last_reason: z.string(),
+});
 
 /**
  * One page of set-aside telemetry, newest first, older than `before` when
@@ -92,7 +103,9 @@ export async function getQuarantinePage({
 }): Promise<{ entries: QuarantineEntry[]; next?: QuarantineCursor }> {
   const where = scope(viewer, siteId, unitId);
   if (before) where.push(sql`(q.received_at, q.id) < (${before.receivedAt.toISOString()}::timestamptz, ${before.id})`);
-  const rows = rowsOf<Row>(
+  const rows = parseRows(
+    'set-aside page',
+    entryRowSchema,
     await db.execute(sql`select q.id, q.received_at, q.topic, q.site_id, q.unit_id, s.timezone, q.sample_index, q.payload, q.payload_bytes, q.reason
       from quarantine q left join sites s on s.id = q.site_id
       where ${whereOf(where)}
@@ -100,15 +113,15 @@ export async function getQuarantinePage({
       limit ${limit + 1}`),
   );
   const entries = rows.slice(0, limit).map((r) => ({
-    id: Number(r.id),
-    receivedAt: new Date(r.received_at),
+    id: r.id,
+    receivedAt: r.received_at,
     topic: r.topic,
     siteId: r.site_id,
     unitId: r.unit_id,
     timezone: r.timezone,
     sampleIndex: r.sample_index,
     payload: r.payload,
-    payloadBytes: Number(r.payload_bytes),
+    payloadBytes: r.payload_bytes,
     reason: r.reason,
   }));
   const last = entries[entries.length - 1];
@@ -147,7 +160,9 @@ export async function getQuarantineCountsByUnit({
 }): Promise<{ units: QuarantineUnitCount[]; total: number; capped: boolean }> {
   const where = scope(viewer, siteId, unitId);
   where.push(sql`q.received_at > ${new Date(nowMs - 86_400_000).toISOString()}::timestamptz`);
-  const rows = rowsOf<{ site_id: string | null; unit_id: string | null; n: number; total: number; last_at: string | Date; last_reason: string }>(
+  const rows = parseRows(
+    'set-aside counts',
+    unitCountRowSchema,
     await db.execute(sql`select site_id, unit_id, count(*)::int as n, (sum(count(*)) over ())::int as total, max(received_at) as last_at,
         (array_agg(reason order by received_at desc, id desc))[1] as last_reason
       from (select q.id, q.site_id, q.unit_id, q.received_at, q.reason from quarantine q
@@ -156,8 +171,8 @@ export async function getQuarantineCountsByUnit({
       order by n desc, max(received_at) desc
       limit 100`),
   );
-  const units = rows.map((r) => ({ siteId: r.site_id, unitId: r.unit_id, count: Number(r.n), lastAt: new Date(r.last_at), lastReason: r.last_reason }));
-  const total = Number(rows[0]?.total ?? 0);
+  const units = rows.map((r) => ({ siteId: r.site_id, unitId: r.unit_id, count: r.n, lastAt: r.last_at, lastReason: r.last_reason }));
+  const total = rows[0]?.total ?? 0;
   return { units, total: Math.min(total, cap), capped: total > cap };
 }
 
