@@ -5,38 +5,10 @@ import { asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { dbJson, dbNumber, dbNumberOrNull, parseRows, rowsOf, type Db } from '@/db/client';
 import { sites, units, type SiteRow, type UnitRow } from '@/db/schema';
 import { z } from 'zod';
-import { diagnosisLimitsSchema, UNIT_KINDS, type Nameplate } from '@/lib/contract/nameplate';
+import { diagnosisLimitsSchema, UNIT_KINDS } from '@/lib/contract/nameplate';
 import { canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
 import { compareStates, OFFLINE_AFTER_MS, unitStateOf, UNIT_STATES, type UnitState, type UnitStateView } from './unit-state';
 
-/** A unit row back as a contract nameplate. */
-export function nameplateOfUnit(row: UnitRow): Nameplate {
-  const optional = <T>(v: T | null) => (v === null ? undefined : v);
-  return {
-    id: row.id,
-    siteId: row.siteId,
-    name: optional(row.name),
-    kind: row.kind,
-    ratedKw: row.ratedKw,
-    ratedRpm: row.ratedRpm,
-    maxRpm: row.maxRpm,
-    poles: row.poles,
-    keVPerKrpm: row.keVPerKrpm,
-    keRefC: row.keRefC,
-    magnet: row.magnet,
-    magnetTempCoeffPctPerC: optional(row.magnetTempCoeffPctPerC),
-    phaseOhm: row.phaseOhm,
-    phaseMh: row.phaseMh,
-    powerCurve: optional(row.powerCurve),
-    cutInMs: optional(row.cutInMs),
-    cutOutMs: optional(row.cutOutMs),
-    rotorDiameterM: optional(row.rotorDiameterM),
-    designHeadM: optional(row.designHeadM),
-    designFlowM3s: optional(row.designFlowM3s),
-    efficiency: optional(row.efficiency),
-    diagnosis: optional(row.diagnosis),
-  };
-}
 
 /** Every site, by name. */
 export async function getSites({ db }: { db: Db }): Promise<SiteRow[]> {

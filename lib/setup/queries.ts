@@ -7,12 +7,40 @@
  */
 import { and, asc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { sites, units, type SiteRow } from '@/db/schema';
+import { sites, units, type SiteRow, type UnitRow } from '@/db/schema';
 import { canEditSetup, canSeeSite, siteFilter, type Viewer } from '@/lib/auth/viewer';
 import type { Fleet, Nameplate, Site } from '@/lib/contract/nameplate';
-import { nameplateOfUnit } from '@/lib/fleet/queries';
 import type { FieldErrors } from './forms';
 import { actorOfViewer, writeAudit } from '@/lib/auth/audit';
+
+/** A unit row back as a contract nameplate. */
+export function nameplateOfUnit(row: UnitRow): Nameplate {
+  const optional = <T>(v: T | null) => (v === null ? undefined : v);
+  return {
+    id: row.id,
+    siteId: row.siteId,
+    name: optional(row.name),
+    kind: row.kind,
+    ratedKw: row.ratedKw,
+    ratedRpm: row.ratedRpm,
+    maxRpm: row.maxRpm,
+    poles: row.poles,
+    keVPerKrpm: row.keVPerKrpm,
+    keRefC: row.keRefC,
+    magnet: row.magnet,
+    magnetTempCoeffPctPerC: optional(row.magnetTempCoeffPctPerC),
+    phaseOhm: row.phaseOhm,
+    phaseMh: row.phaseMh,
+    powerCurve: optional(row.powerCurve),
+    cutInMs: optional(row.cutInMs),
+    cutOutMs: optional(row.cutOutMs),
+    rotorDiameterM: optional(row.rotorDiameterM),
+    designHeadM: optional(row.designHeadM),
+    designFlowM3s: optional(row.designFlowM3s),
+    efficiency: optional(row.efficiency),
+    diagnosis: optional(row.diagnosis),
+  };
+}
 
 /** The fields that differ between two records, as { field: { before, after } } for the audit log. */
 export function changedFields(before: Record<string, unknown>, after: Record<string, unknown>): Record<string, { before: unknown; after: unknown }> {

@@ -14,7 +14,7 @@ import type { Nameplate } from '@/lib/contract/nameplate';
 import type { DiagnosisNameplate } from '@/lib/diagnosis/diagnose';
 import { resolveLimits, type ResolvedLimits } from '@/lib/diagnosis/limits';
 import { keTrend, type KeTrend } from '@/lib/diagnosis/trend';
-import { nameplateOfUnit } from '@/lib/fleet/queries';
+import { nameplateOfUnit } from '@/lib/setup/queries';
 import { unitStateOf, type UnitStateView } from '@/lib/fleet/unit-state';
 import { emfChart, type EmfChart, type EmfSample } from './emf-points';
 

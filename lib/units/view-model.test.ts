@@ -3,7 +3,7 @@ import type { UnitRow } from '@/db/schema';
 import { finding, SAFETY_CAUTION } from '@/lib/diagnosis/findings';
 import { resolveLimits } from '@/lib/diagnosis/limits';
 import type { KeTrend } from '@/lib/diagnosis/trend';
-import { nameplateOfUnit } from '@/lib/fleet/queries';
+import { nameplateOfUnit } from '@/lib/setup/queries';
 import { unitStateOf } from '@/lib/fleet/unit-state';
 import type { UnitEmfView, UnitSeries, UnitView } from './queries';
 import { emfPanelView, findingsView, kePanelView, nameplateView, seriesPanelView, unitHeadView } from './view-model';
