@@ -6,7 +6,7 @@
  * findings (lib/diagnosis/findings/) put the judgement into words;
  * diagnoseSamples composes the two.
  */
-import type { DiagnosisLimits, MagnetMaterial } from '@/lib/contract/nameplate';
+import type { DiagnosisLimits } from '@/lib/contract/nameplate';
 import { fitTrack, type KeFit } from './ke-fit';
 import { resolveLimits, unbalanceIsAlarm, type ResolvedLimits } from './limits';
 import { overspeedRun, type OverspeedRun } from './overspeed-run';
@@ -16,23 +16,8 @@ import { medianSpeedRatio, selectTrack, timeOrder, usedTimeRange, type Track, ty
 export const VERDICTS = ['healthy', 'demagnetised', 'shorted-turns', 'speed-sensor-fault', 'insufficient-data'] as const;
 export type Verdict = (typeof VERDICTS)[number];
 
-/** The nameplate fields the diagnosis reads (a validated Nameplate fits). */
-export interface DiagnosisNameplate {
-  readonly ratedRpm: number;
-  /** Overspeed limit, rev/min. */
-  readonly maxRpm: number;
-  readonly poles: number;
-  readonly keVPerKrpm: number;
-  readonly keRefC: number;
-  readonly magnet: MagnetMaterial;
-  readonly magnetTempCoeffPctPerC?: number | undefined;
-  readonly phaseOhm: number;
-  readonly phaseMh: number;
-  readonly diagnosis?: DiagnosisLimits | undefined;
-}
-
-/** Where the magnet temperature of the used samples came from. */
-export type TemperatureSource = 'statorC' | 'ambientC' | 'keRefC' | 'mixed';
+export type { DiagnosisNameplate, TemperatureSource } from './nameplate';
+import type { DiagnosisNameplate } from './nameplate';
 
 /** Input of {@link judge}. */
 export interface JudgeInput {

@@ -18,7 +18,7 @@ import { electricalHz } from '@/lib/physics/synchronous-speed';
 import { fitThroughOrigin } from '@/lib/physics/through-origin-fit';
 import { lineVoltageUnbalancePct } from '@/lib/physics/unbalance';
 import { copperOhmAtFast } from '@/lib/physics/winding-resistance';
-import type { DiagnosisNameplate, TemperatureSource } from './judge';
+import type { DiagnosisNameplate, TemperatureSource } from './nameplate';
 import { magnetTempC, windingTempC } from './sample-emf';
 import type { SampleColumns } from './sample-columns';
 import type { Track } from './track';

@@ -3,7 +3,7 @@
  * highest, and the time spent above it.
  */
 import { rpmFromHz } from '@/lib/physics/synchronous-speed';
-import type { DiagnosisNameplate } from './judge';
+import type { DiagnosisNameplate } from './nameplate';
 import { OVERSPEED_GAP_S } from './limits';
 import type { SampleColumns } from './sample-columns';
 

@@ -7,7 +7,7 @@
 import { median } from '@/lib/physics/median';
 import { meanOfPhases } from '@/lib/physics/phase-mean';
 import { electricalHzFast, rpmFromHz } from '@/lib/physics/synchronous-speed';
-import type { DiagnosisNameplate } from './judge';
+import type { DiagnosisNameplate } from './nameplate';
 import { TRANSIENT_NEIGHBOUR_MAX_S, type ResolvedLimits } from './limits';
 import type { SampleColumns } from './sample-columns';
 
