@@ -11,7 +11,6 @@ import { sites, units, unitHealth, unitStatus, type SiteRow, type StoredFinding,
 import { canSeeSite, type Viewer } from '@/lib/auth/viewer';
 import { downsampleSeries, thinEvenly, DEFAULT_MAX_POINTS, type SeriesBucket, type SeriesPoint } from '@/lib/charts/downsample';
 import type { Nameplate } from '@/lib/contract/nameplate';
-import type { DiagnosisNameplate } from '@/lib/diagnosis/diagnose';
 import { resolveLimits, type ResolvedLimits } from '@/lib/diagnosis/limits';
 import { keTrend, type KeTrend } from '@/lib/diagnosis/trend';
 import { nameplateOfUnit } from '@/lib/setup/queries';
@@ -62,22 +61,6 @@ export interface UnitView {
     readonly detail: Record<string, unknown>;
   } | undefined;
   readonly state: UnitStateView;
-}
-
-/** The diagnosis fields of a nameplate. */
-function diagnosisNameplate(unit: UnitRow): DiagnosisNameplate {
-  return {
-    ratedRpm: unit.ratedRpm,
-    maxRpm: unit.maxRpm,
-    poles: unit.poles,
-    keVPerKrpm: unit.keVPerKrpm,
-    keRefC: unit.keRefC,
-    magnet: unit.magnet,
-    magnetTempCoeffPctPerC: unit.magnetTempCoeffPctPerC ?? undefined,
-    phaseOhm: unit.phaseOhm,
-    phaseMh: unit.phaseMh,
-    diagnosis: unit.diagnosis ?? undefined,
-  };
 }
 
 /** One unit of one site for the viewer, or undefined (no such unit, another site's, or not the viewer's). */
@@ -389,7 +372,7 @@ export async function getUnitEmfView({ db, view, nowMs = Date.now() }: { db: Db;
     ambientC: n(r.ambient_c),
   }));
   const speedFrom = h?.detail?.speedSource === 'hz' ? 'hz' : 'rpm';
-  const chart = emfChart({ nameplate: diagnosisNameplate(view.unit), samples: thinEvenly(samples, Math.max(2, MAX_SCATTER_POINTS)), speedFrom });
+  const chart = emfChart({ nameplate: nameplateOfUnit(view.unit), samples: thinEvenly(samples, Math.max(2, MAX_SCATTER_POINTS)), speedFrom });
   return { ...chart, fromMs, toMs, diagnosisWindow: h !== undefined, samplesRead: rows.length };
 }
 
