@@ -33,11 +33,18 @@ describe(`database schema on ${realDatabaseUrl ? 'PostgreSQL' : 'PGlite'}`, () =
       'unit_status',
       'unit_health',
       'unit_health_history',
-      'alerts',
-      'alert_events',
+      'unit_alerts',
+      'unit_alert_events',
+      'alert_condition_states',
+      'webhook_endpoints',
+      'webhook_deliveries',
+      'webhook_attempts',
     ]) {
       expect(names).toContain(table);
     }
+    // The first schema's alert tables (states open/acknowledged/resolved) were carried over and dropped.
+    expect(names).not.toContain('alerts');
+    expect(names).not.toContain('alert_events');
   });
 
   it('range-partitions telemetry by ts, with partitions made ahead and a BRIN index', async () => {

@@ -1,0 +1,3 @@
+DROP TABLE "alert_events" CASCADE;--> statement-breakpoint
+DROP TABLE "alerts" CASCADE;--> statement-breakpoint
+DROP TYPE "public"."alert_state";
