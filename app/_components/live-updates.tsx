@@ -77,6 +77,7 @@ export function LiveUpdates({ siteId, unitId, unitNames }: { siteId: string; uni
         setStatus('live');
       });
       es.addEventListener('samples', refreshSoon);
+      es.addEventListener('alert', refreshSoon);
       es.addEventListener('diagnosis', (e) => {
         refreshSoon();
         try {

@@ -13,7 +13,7 @@ import { readConditions, type UnitFacts } from './conditions';
 import { DEFAULT_ALERT_LIMITS, statorLimitC } from './limits';
 
 const NOW = Date.UTC(2026, 11, 4, 12);
-const base: UnitFacts = { nowMs: NOW, maxRpm: 300, lastSampleMs: NOW - 10_000, presence: 'online', latest: { rpmMax: 250, statorCMax: 60 }, setAsideLast10Min: 0 };
+const base: UnitFacts = { nowMs: NOW, maxRpm: 300, lastSampleMs: NOW - 10_000, registeredMs: NOW - 86_400_000, presence: 'online', latest: { rpmMax: 250, statorCMax: 60 }, setAsideLast10Min: 0 };
 const read = (facts: Partial<UnitFacts>, was: AlertCondition[] = []) =>
   Object.fromEntries(readConditions({ ...base, ...facts }, DEFAULT_ALERT_LIMITS, DEFAULT_LIMITS, new Set(was)).map((r) => [r.condition, r]));
 
@@ -39,11 +39,13 @@ describe('alert conditions', () => {
     expect(read({ latest: { rpmMax: 200, statorCMax: 129 } }, ['stator-temperature'])['stator-temperature']!.holds).toBe(false);
   });
 
-  it('offline after 15 minutes without a sample, when the link says so, or never having sent one', () => {
+  it('offline after 15 minutes without a sample, when the link says so, or having sent none 15 minutes after registering', () => {
     expect(read({ lastSampleMs: NOW - 15 * 60_000 }).offline!.holds).toBe(false);
     expect(read({ lastSampleMs: NOW - 15 * 60_000 - 1 }).offline!.holds).toBe(true);
     expect(read({ presence: 'offline' }).offline!.holds).toBe(true);
-    expect(read({ lastSampleMs: null }).offline).toMatchObject({ holds: true, message: 'The unit has never sent a sample.' });
+    expect(read({ lastSampleMs: null }).offline).toMatchObject({ holds: true, message: 'The unit has sent no sample since it was registered 1440 minutes ago.' });
+    // Just registered: not offline until the offline time has passed without a sample.
+    expect(read({ lastSampleMs: null, registeredMs: NOW - 60_000 }).offline!.holds).toBe(false);
   });
 
   it('bad telemetry from three messages set aside in ten minutes', () => {

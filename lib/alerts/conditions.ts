@@ -18,6 +18,8 @@ export interface UnitFacts {
   readonly nowMs: number;
   readonly maxRpm: number;
   readonly lastSampleMs: number | null;
+  /** When the unit was registered: one that never sent a sample is offline only once the offline time has passed since. */
+  readonly registeredMs: number;
   readonly presence: 'online' | 'offline' | null;
   /** The latest diagnosis, if any. */
   readonly health?: {
@@ -85,7 +87,8 @@ function statorTemperature(facts: UnitFacts, limits: AlertLimits, was: boolean):
 
 function offline(facts: UnitFacts, limits: AlertLimits): ConditionReading {
   const silentMs = facts.lastSampleMs === null ? null : facts.nowMs - facts.lastSampleMs;
-  const holds = facts.presence === 'offline' || silentMs === null || silentMs > limits.offlineAfterMs;
+  const neverSent = silentMs === null && facts.nowMs - facts.registeredMs > limits.offlineAfterMs;
+  const holds = facts.presence === 'offline' || neverSent || (silentMs !== null && silentMs > limits.offlineAfterMs);
   const minutes = silentMs === null ? null : Math.floor(silentMs / 60_000);
   return {
     condition: 'offline',
@@ -95,7 +98,7 @@ function offline(facts: UnitFacts, limits: AlertLimits): ConditionReading {
     limit: limits.offlineAfterMs / 60_000,
     message:
       silentMs === null
-        ? 'The unit has never sent a sample.'
+        ? `The unit has sent no sample since it was registered ${Math.floor((facts.nowMs - facts.registeredMs) / 60_000)} minutes ago.`
         : facts.presence === 'offline'
           ? `The unit's link reports offline; last sample ${minutes} minutes ago.`
           : `No sample for ${minutes} minutes (offline after ${limits.offlineAfterMs / 60_000}).`,

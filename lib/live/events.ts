@@ -26,6 +26,12 @@ export const liveEventSchema = z.discriminatedUnion('type', [
     previousVerdict: z.string().max(64).optional(),
   }),
   z.object({
+    /** An alert of the unit opened, changed or cleared (lib/alerts): its pages read the new state. */
+    type: z.literal('alert'),
+    siteId: slug,
+    unitId: slug,
+  }),
+  z.object({
     /** A unit's MQTT password was rotated or revoked: the embedded broker disconnects its device (lib/devices). */
     type: z.literal('device-credentials'),
     siteId: slug,

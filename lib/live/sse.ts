@@ -45,7 +45,7 @@ function frame(event: string, id: string, data: unknown): string {
 }
 
 /** The events a page hears of; others on the feed (device credentials) are for the server itself. */
-const PAGE_EVENTS: ReadonlySet<LiveEvent['type']> = new Set(['samples', 'diagnosis']);
+const PAGE_EVENTS: ReadonlySet<LiveEvent['type']> = new Set(['samples', 'diagnosis', 'alert']);
 
 /** Whether `event` is for the page following `siteId` (and `unitId`). */
 export function matchesScope(event: LiveEvent, siteId: string, unitId?: string): boolean {
