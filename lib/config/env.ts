@@ -70,6 +70,10 @@ export const envSchema = z.object({
   SESSION_IDLE_HOURS: positiveInt('a number of hours', 24 * 30).default(12),
   /** A session ends this long after sign-in, used or not. */
   SESSION_MAX_DAYS: positiveInt('a number of days', 365).default(7),
+  /** Seconds between evaluations of the alert conditions (lib/alerts/evaluator.ts). */
+  ALERT_INTERVAL_S: positiveInt('a number of seconds', 3_600).default(15),
+  /** The address people reach millrace at, for the links in alerts and webhooks; unset: links are paths. */
+  PUBLIC_URL: url(['http', 'https']).optional(),
 });
 
 export type Config = z.infer<typeof envSchema>;

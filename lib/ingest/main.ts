@@ -10,6 +10,7 @@ import { getConfig } from '@/lib/config/env';
 import { createLogger } from '@/lib/log/logger';
 import { heapProblem } from './heap';
 import { startIngester } from './ingester';
+import { startAlertEvaluator } from '@/lib/alerts/evaluator';
 import { startDiagnosisWorker } from '@/lib/diagnosis/worker';
 import { createLivePublisher } from '@/lib/live/publisher';
 
@@ -62,8 +63,11 @@ async function main(): Promise<number> {
     log: log.child('diagnosis'),
     live,
   });
+  // Alerts are evaluated beside the diagnosis, on what it and the ingester wrote.
+  const stopAlerts = startAlertEvaluator({ db: handle.db, intervalS: config.ALERT_INTERVAL_S, baseUrl: config.PUBLIC_URL, log: log.child('alerts'), live });
+  const stopWorkers = () => Promise.all([stopDiagnosis(), stopAlerts()]);
   ingester.ready().catch(async () => {
-    await stopDiagnosis();
+    await stopWorkers();
     // The pool logged why (a refused subscription); nothing can be ingested.
     await ingester.abort();
     await handle.close();
@@ -79,7 +83,7 @@ async function main(): Promise<number> {
       }
       stopping = true;
       log.info('draining before exit', { signal });
-      void stopDiagnosis()
+      void stopWorkers()
         .then(() => ingester.stop())
         .then(() => live.flush())
         .then(() => handle.close())

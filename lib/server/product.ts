@@ -95,6 +95,10 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   });
   stack.push({ name: 'diagnosis', stop: async () => diagnosis() });
 
+  const { startAlertEvaluator } = await import('@/lib/alerts/evaluator');
+  const alerts = startAlertEvaluator({ db: handle.db, intervalS: config.ALERT_INTERVAL_S, baseUrl: config.PUBLIC_URL, log: log.child('alerts'), live });
+  stack.push({ name: 'alerts', stop: alerts });
+
   if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack, embedded);
   else {
     registerComponent('demo', { state: () => ({ status: 'off', reason: 'DEMO=off' }) });
