@@ -184,6 +184,39 @@ export const COMMAND_HELP: Record<string, CommandHelp> = {
       DATABASE_NOTE,
     ],
   },
+  'webhook add': {
+    name: 'webhook add',
+    summary: 'add an address that alerts are posted to, signed; prints its secret once',
+    options: [
+      { flag: '--url', value: 'URL', required: true, text: 'the http:// or https:// address the messages are posted to' },
+      { flag: '--site', value: 'SITE', text: "only this site's alerts (default: every site)" },
+      { flag: '--min-severity', value: 'S', text: 'info, warning or alarm: the least severe sent (default warning)' },
+      { flag: '--json', text: 'print { "id", "url", "siteId", "minSeverity", "secret" }' },
+    ],
+    notes: [
+      'Each change of an alert (opened, acknowledged, cleared, reopened, shelved, ' +
+        'unshelved) is one JSON POST { "type", "timestamp", "data": alert }, signed as ' +
+        'the Standard Webhooks specification says: headers webhook-id, webhook-timestamp ' +
+        'and webhook-signature, keyed with the secret (whsec_ and base64). A refused or ' +
+        'unanswered message is sent again with the same webhook-id, 5 s, 10 s, 20 s ... ' +
+        'at most 10 minutes apart, for 24 hours.',
+      'The secret is kept, as signing needs it, but shown only here.',
+      DATABASE_NOTE,
+    ],
+  },
+  'webhook list': {
+    name: 'webhook list',
+    summary: 'list the webhook endpoints and what their queues hold',
+    options: [{ flag: '--json', text: 'print a JSON array instead of the readable list' }],
+    notes: ['Shows each id, address, site and least severity, and its messages queued, delivered and given up; never the secret.', DATABASE_NOTE],
+  },
+  'webhook disable': {
+    name: 'webhook disable',
+    summary: 'stop posting alerts to one webhook endpoint',
+    arguments: [{ name: 'ID', text: 'the endpoint, by the id webhook list shows' }],
+    options: [],
+    notes: ['Its messages not yet delivered are given up, with the reason kept.', DATABASE_NOTE],
+  },
 };
 
 /** The command-line's help option, listed in every command's help. */
@@ -269,7 +302,7 @@ export function helpText(): string {
   lines.push(
     '',
     ...wrap('Exit status: 0 when the command ran, 2 when it could not (a bad file, column or option).'),
-    ...wrap('Database commands (units import, export, device, user, token) use DATABASE_URL when it is set, else the embedded database in DATA_DIR (./data).'),
+    ...wrap('Database commands (units import, export, device, user, token, webhook) use DATABASE_URL when it is set, else the embedded database in DATA_DIR (./data).'),
     '',
   );
   return lines.join('\n');

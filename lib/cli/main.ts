@@ -26,6 +26,7 @@ export const COMMANDS: Record<string, () => Promise<CommandModule>> = {
   device: () => import('./device'),
   user: () => import('./user'),
   token: () => import('./token'),
+  webhook: () => import('./webhook'),
 };
 
 /** The help of `millrace <name> --help` (every sub-command of `units`, say); undefined for an unknown name. */

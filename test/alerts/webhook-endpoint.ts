@@ -24,7 +24,8 @@ export interface TestEndpoint {
   close(): Promise<void>;
 }
 
-export async function startEndpoint(answer: Answer, path = '/hook'): Promise<TestEndpoint> {
+/** An endpoint on a free port; `delayMs` holds each answer back that long. */
+export async function startEndpoint(answer: Answer, { path = '/hook', delayMs = 0 } = {}): Promise<TestEndpoint> {
   const received: Received[] = [];
   const server = createServer((req, res) => {
     const chunks: Buffer[] = [];
@@ -34,7 +35,9 @@ export async function startEndpoint(answer: Answer, path = '/hook'): Promise<Tes
       received.push({ headers: req.headers, body: Buffer.concat(chunks).toString('utf8'), atMs: performance.now() });
       const what = answer(n);
       if (what === 'hang') return;
-      res.writeHead(what, { 'content-type': 'text/plain' }).end(what >= 300 ? `refused ${n}` : 'ok');
+      const reply = () => res.writeHead(what, { 'content-type': 'text/plain' }).end(what >= 300 ? `refused ${n}` : 'ok');
+      if (delayMs > 0) setTimeout(reply, delayMs);
+      else reply();
     });
   });
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
