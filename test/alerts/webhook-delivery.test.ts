@@ -11,33 +11,21 @@
  */
 import { eq } from 'drizzle-orm';
 import { Webhook } from 'standardwebhooks';
-import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { webhookAttempts, webhookDeliveries, webhookEndpoints } from '@/db/schema';
+import { afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { webhookAttempts, webhookDeliveries } from '@/db/schema';
 import { WEBHOOK_GIVE_UP_AFTER_MS, startWebhookDelivery, type WebhookDelivery, type WebhookDeliveryOptions } from '@/lib/alerts/webhooks/deliver';
 import { enqueueWebhookMessages, insertWebhookEndpoint } from '@/lib/alerts/webhooks/queries';
-import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
-import { registerFleet, testFleet, testLogger, testTag, waitFor } from '@/test/support/ingest';
-import { startEndpoint, testAlert, type Answer, type TestEndpoint } from './webhook-endpoint';
+import { testFleet, testLogger, testTag, waitFor } from '@/test/support/ingest';
+import { startEndpoint, testAlert, webhookTestDatabase, type Answer, type TestEndpoint } from './webhook-endpoint';
 
 const fleet = testFleet(testTag(), { windUnits: 1, hydroUnits: 0 });
 const unit = fleet.units[0]!;
-let test: TestDatabase;
-const db = () => test.handle.db;
+const db = webhookTestDatabase(fleet);
 let endpoints: TestEndpoint[] = [];
 let loops: WebhookDelivery[] = [];
 let logLines: string[] = [];
 
-beforeAll(async () => {
-  test = await createTestDatabase();
-  await registerFleet(test.handle, fleet);
-}, 60_000);
-afterAll(async () => {
-  await test?.drop();
-});
-beforeEach(async () => {
-  await db().delete(webhookAttempts);
-  await db().delete(webhookDeliveries);
-  await db().delete(webhookEndpoints);
+beforeEach(() => {
   logLines = [];
 });
 afterEach(async () => {

@@ -1,10 +1,17 @@
 /**
  * For the webhook tests: a receiving endpoint on 127.0.0.1 (node:http, a
- * free port) that answers as the test says, or never; and an alert object
- * of contract section 7.
+ * free port) that answers as the test says, or never; an alert object of
+ * contract section 7; and a database with a fleet whose webhook tables are
+ * emptied before each test.
  */
 import { createServer, type IncomingHttpHeaders } from 'node:http';
+import { afterAll, beforeAll, beforeEach } from 'vitest';
+import type { Db } from '@/db/client';
+import { webhookAttempts, webhookDeliveries, webhookEndpoints } from '@/db/schema';
 import type { AlertObject } from '@/lib/contract/alerts';
+import type { Fleet } from '@/lib/contract/nameplate';
+import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
+import { registerFleet } from '@/test/support/ingest';
 
 export interface Received {
   readonly headers: IncomingHttpHeaders;
@@ -74,4 +81,22 @@ export function testAlert({ siteId, unitId, severity, id = '1' }: { siteId: stri
     shelvedUntil: null,
     url: `/sites/${siteId}/units/${unitId}`,
   };
+}
+
+/** A fresh database of this run's backend with `fleet` registered, for the file; no endpoint or message left from the test before. */
+export function webhookTestDatabase(fleet: Fleet): () => Db {
+  let test: TestDatabase | undefined;
+  beforeAll(async () => {
+    test = await createTestDatabase();
+    await registerFleet(test.handle, fleet);
+  }, 60_000);
+  afterAll(async () => {
+    await test?.drop();
+  });
+  beforeEach(async () => {
+    await test!.handle.db.delete(webhookAttempts);
+    await test!.handle.db.delete(webhookDeliveries);
+    await test!.handle.db.delete(webhookEndpoints);
+  });
+  return () => test!.handle.db;
 }

@@ -7,33 +7,18 @@
  */
 import { eq } from 'drizzle-orm';
 import { Webhook } from 'standardwebhooks';
-import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { auditLog, webhookAttempts, webhookDeliveries, webhookEndpoints } from '@/db/schema';
+import { describe, expect, it } from 'vitest';
+import { auditLog, webhookDeliveries, webhookEndpoints } from '@/db/schema';
 import { disableWebhookEndpoint, enqueueWebhookMessages, insertWebhookEndpoint, listWebhookEndpoints } from '@/lib/alerts/webhooks/queries';
 import { webhookHeaders } from '@/lib/alerts/webhooks/sign';
 import { WEBHOOK_TYPES } from '@/lib/contract/alerts';
-import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
-import { registerFleet, testFleet, testTag } from '@/test/support/ingest';
-import { testAlert } from './webhook-endpoint';
+import { testFleet, testTag } from '@/test/support/ingest';
+import { testAlert, webhookTestDatabase } from './webhook-endpoint';
 
 const fleet = testFleet(testTag(), { windUnits: 1, hydroUnits: 1 });
 const [wind, hydro] = fleet.units as [(typeof fleet.units)[0], (typeof fleet.units)[0]];
-let test: TestDatabase;
-const db = () => test.handle.db;
+const db = webhookTestDatabase(fleet);
 const NOW = Date.parse('2026-03-01T10:00:00Z');
-
-beforeAll(async () => {
-  test = await createTestDatabase();
-  await registerFleet(test.handle, fleet);
-}, 60_000);
-afterAll(async () => {
-  await test?.drop();
-});
-beforeEach(async () => {
-  await db().delete(webhookAttempts);
-  await db().delete(webhookDeliveries);
-  await db().delete(webhookEndpoints);
-});
 
 async function added(url: string, siteId: string | null, minSeverity: string): Promise<number> {
   const r = await insertWebhookEndpoint({ db: db(), url, siteId, minSeverity, createdBy: 'tester@example.org' });
