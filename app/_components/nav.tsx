@@ -3,6 +3,7 @@ import { usePathname } from 'next/navigation';
 
 const LINKS = [
   { href: '/', label: 'Fleet', match: (p: string) => p === '/' || p.startsWith('/sites') },
+  { href: '/alerts', label: 'Alerts', match: (p: string) => p.startsWith('/alerts') },
   { href: '/setup', label: 'Setup', match: (p: string) => p.startsWith('/setup') },
   { href: '/data-quality', label: 'Data quality', match: (p: string) => p.startsWith('/data-quality') },
 ] as const;

@@ -110,4 +110,5 @@ export const AUDIT_ACTIONS = [
   'unit-changed',
   'fleet-imported',
   'alert-acknowledged',
+  'alert-shelved',
 ] as const;

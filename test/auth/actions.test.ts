@@ -14,7 +14,9 @@ import type { Viewer } from '@/lib/auth/viewer';
 import { upsertFleet } from '@/lib/setup/queries';
 import { formOfNameplate } from '@/lib/setup/forms';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
-import { testFleet, testTag } from '@/test/support/ingest';
+import { openAlert } from '@/lib/alerts/lifecycle';
+import { insertAlert } from '@/lib/alerts/store';
+import { queryRows, testFleet, testTag } from '@/test/support/ingest';
 
 const state = vi.hoisted(() => ({ viewer: undefined as Viewer | undefined }));
 
@@ -97,10 +99,13 @@ async function run(call: () => Promise<unknown>): Promise<Outcome> {
 
 const ADMIN_ONLY: Record<Caller, Outcome> = { admin: 'done', operator: 'refused', crew: 'refused', owner: 'refused', nobody: 'sign-in' };
 const SETUP: Record<Caller, Outcome> = { admin: 'done', operator: 'done', crew: 'refused', owner: 'refused', nobody: 'sign-in' };
+/** Acknowledging and shelving alerts: everyone but owners (an alert of the crew member's own site). */
+const ALERTS: Record<Caller, Outcome> = { admin: 'done', operator: 'done', crew: 'done', owner: 'refused', nobody: 'sign-in' };
 
 let targetId = 0;
 let tokenId = 0;
 let linkId = 0;
+let alertId = 0;
 
 /** Each action: how to call it, and what each caller gets. */
 const TABLE: Record<string, { expect: Record<Caller, Outcome>; call: (fn: (...args: unknown[]) => Promise<unknown>) => Promise<unknown> }> = {
@@ -133,6 +138,8 @@ const TABLE: Record<string, { expect: Record<Caller, Outcome>; call: (fn: (...ar
   },
   'setup/device-actions.ts#issueDeviceCredentialsAction': { expect: SETUP, call: (fn) => fn({ siteId: siteA, unitId: unitA.id }, { submitted: 0 }) },
   'setup/device-actions.ts#deviceCredentialsAction': { expect: SETUP, call: (fn) => fn({ siteId: siteA, unitId: unitA.id }, { submitted: 0 }, form({ intent: 'revoke' })) },
+  'alerts/actions.ts#acknowledgeAlertsAction': { expect: ALERTS, call: (fn) => fn({ submitted: 0 }, form({ alertId: String(alertId), note: 'Going up to look.' })) },
+  'alerts/actions.ts#shelveAlertAction': { expect: ALERTS, call: (fn) => fn(alertId, { submitted: 0 }, form({ reason: 'Planned work on the unit', for: '8h' })) },
   // Open to anyone by design: signing in, signing out (ends only the caller's own session).
   'sign-in/actions.ts#signInAction': {
     expect: { admin: 'done', operator: 'done', crew: 'done', owner: 'done', nobody: 'done' },
@@ -169,6 +176,9 @@ beforeAll(async () => {
   tokenId = (await createApiToken({ db: t.handle.db, actor, person: target.person, name: 'x' })).row.id;
   const link = await createDisplayLink({ db: t.handle.db, actor, createdBy: targetId, siteId: siteA, name: 'x' });
   if (link.ok) linkId = link.row.id;
+  const [unitRow] = await queryRows<{ key: number }>(t.handle, 'select key from units where id = $1', [unitA.id]);
+  const opening = { unitKey: Number(unitRow!.key), condition: 'overspeed', severity: 'alarm', message: 'Speed reached 430 rpm.', value: 430, limit: 420 } as const;
+  alertId = (await insertAlert({ db: t.handle.db, opening, step: openAlert(Date.now()), nowMs: Date.now() }))!.id;
 }, 60_000);
 
 afterAll(async () => {
