@@ -15,10 +15,14 @@
 import { readdirSync, statSync } from 'node:fs';
 import { join, relative, sep } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { eq } from 'drizzle-orm';
 import { openDatabase } from '@/db/client';
+import { units } from '@/db/schema';
 import { createApiToken } from '@/lib/auth/api-tokens';
 import { createDisplayLink } from '@/lib/auth/display-links';
 import { getPersonByEmail } from '@/lib/auth/people';
+import { openAlert } from '@/lib/alerts/lifecycle';
+import { insertAlert } from '@/lib/alerts/store';
 import { addTestAccount, type TestAccount } from '@/test/support/accounts';
 import { testFleet, testTag } from '@/test/support/ingest';
 import { startProductProcess, type RunningProduct } from '@/test/support/product';
@@ -44,6 +48,7 @@ let product: RunningProduct;
 const accounts = new Map<Caller, TestAccount>();
 let displayToken = '';
 let operatorId = 0;
+let alertA = 0;
 
 const ALL_OK: Expect = { admin: 200, operator: 200, crew: 200, owner: 200, nobody: 302 };
 const PUBLIC: Expect = { admin: 200, operator: 200, crew: 200, owner: 200, nobody: 200 };
@@ -92,12 +97,22 @@ const TABLE: Record<string, Array<{ url: () => string; expect: Expect }>> = {
   '/setup/import': [{ url: () => '/setup/import', expect: SETUP_WRITE }],
   '/setup/export': [{ url: () => '/setup/export', expect: ALL_OK }],
   '/data-quality': [{ url: () => '/data-quality', expect: ALL_OK }],
+  '/alerts': [{ url: () => '/alerts', expect: ALL_OK }],
+  '/alerts/[alertId]': [
+    { url: () => `/alerts/${alertA}`, expect: SITE_A },
+    { url: () => '/alerts/999999', expect: { admin: 404, operator: 404, crew: 404, owner: 404, nobody: 302 } },
+  ],
   '/api/health': [{ url: () => '/api/health', expect: PUBLIC }],
   '/api/live': [
     { url: () => `/api/live?site=${siteA.id}`, expect: api(SITE_A) },
     { url: () => `/api/live?site=${siteB.id}&unit=${unitB.id}`, expect: api(SITE_B) },
   ],
   '/api/v1/sites': [{ url: () => '/api/v1/sites', expect: api(ALL_OK) }],
+  '/api/v1/alerts': [
+    { url: () => '/api/v1/alerts?state=all', expect: api(ALL_OK) },
+    { url: () => `/api/v1/alerts?site=${siteA.id}`, expect: api(SITE_A) },
+    { url: () => '/api/v1/alerts?state=open', expect: { admin: 400, operator: 400, crew: 400, owner: 400, nobody: 401 } },
+  ],
   // No unit has been diagnosed: 404 for everyone who may ask, 401 for nobody.
   '/api/v1/units/[siteId]/[unitId]/health': [
     { url: () => `/api/v1/units/${siteA.id}/${unitA.id}/health`, expect: { admin: 404, operator: 404, crew: 404, owner: 404, nobody: 401 } },
@@ -153,6 +168,9 @@ beforeAll(async () => {
     const link = await createDisplayLink({ db: handle.db, actor: { label: 'test' }, createdBy: operatorId, siteId: siteA.id, name: `${NASTY} wall` });
     if (!link.ok) throw new Error(link.problem);
     displayToken = link.token;
+    const [unitRow] = await handle.db.select({ key: units.key }).from(units).where(eq(units.id, unitA.id));
+    const opening = { unitKey: unitRow!.key, condition: 'overspeed', severity: 'alarm', message: 'Speed reached 430 rpm.', value: 430, limit: 420 } as const;
+    alertA = (await insertAlert({ db: handle.db, opening, step: openAlert(Date.now()), nowMs: Date.now() }))!.id;
   } finally {
     await handle.close();
   }
