@@ -213,6 +213,7 @@ export function startAlertEvaluator({
   intervalS = EVALUATE_EVERY_S,
   baseUrl,
   clock = () => Date.now(),
+  onChanges,
 }: {
   db: Db;
   log: Logger;
@@ -220,6 +221,8 @@ export function startAlertEvaluator({
   intervalS?: number;
   baseUrl?: string;
   clock?: () => number;
+  /** Called after a pass that changed an alert (the webhook loop's kick). */
+  onChanges?: () => void;
 }): () => Promise<void> {
   if (!(intervalS > 0)) throw new RangeError(`intervalS must be above 0, got ${intervalS}`);
   let stopped = false;
@@ -228,7 +231,10 @@ export function startAlertEvaluator({
   const pass = async () => {
     try {
       const r = await evaluateAlerts({ db, nowMs: clock(), baseUrl, live });
-      if (r.opened + r.changed > 0) log.info('alert evaluation', { ...r });
+      if (r.opened + r.changed > 0) {
+        log.info('alert evaluation', { ...r });
+        onChanges?.();
+      }
     } catch (error) {
       log.error('alert evaluation failed', { error });
     }
