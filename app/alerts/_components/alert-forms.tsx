@@ -37,7 +37,7 @@ function described(...ids: Array<string | false | undefined>): string | undefine
  * Acknowledge with a note. `formId` lets the list's checkboxes (`form={formId}`, name `alertId`)
  * belong to it from their cards; `alertId` makes it the form of one alert.
  */
-export function AcknowledgeForm({ formId, alertId, label }: { formId: string; alertId?: string; label: string }) {
+export function AcknowledgeForm({ formId, alertId, label, disabled = false }: { formId: string; alertId?: string; label: string; disabled?: boolean }) {
   const [state, formAction, pending] = useActionState(acknowledgeAlertsAction, INITIAL);
   const noteId = `${formId}-note`;
   const noteError = state.fieldErrors?.note;
@@ -63,7 +63,7 @@ export function AcknowledgeForm({ formId, alertId, label }: { formId: string; al
         <FieldError id={`${noteId}-error`} message={noteError} />
       </div>
       <FieldError id={`${formId}-ids-error`} message={idsError} />
-      <button type="submit" className={styles.primary} disabled={pending}>
+      <button type="submit" className={styles.primary} disabled={pending || disabled}>
         {label}
       </button>
       <Outcome state={state} />

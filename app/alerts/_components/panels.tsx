@@ -149,10 +149,13 @@ export function AlertList({ screen }: { screen: AlertsScreen }) {
     <section className="panel" aria-labelledby="alerts-heading">
       <h2 id="alerts-heading">Alerts, newest first</h2>
       <p className="note">{screen.summary}</p>
-      {selectable ? (
+      {screen.canAct ? (
+        // Kept when nothing is left to tick, so that what was just done stays in view.
         <div className={styles.bulk}>
-          <p className={styles.hint}>Tick the alerts you take, below, then acknowledge them together with one note.</p>
-          <AcknowledgeForm formId={BULK_FORM_ID} label="Acknowledge selected" />
+          <p className={styles.hint}>
+            {selectable ? 'Tick the alerts you take, below, then acknowledge them together with one note.' : 'Nothing on this page is waiting to be acknowledged.'}
+          </p>
+          <AcknowledgeForm formId={BULK_FORM_ID} label="Acknowledge selected" disabled={!selectable} />
         </div>
       ) : null}
       {screen.rows.length === 0 ? (
