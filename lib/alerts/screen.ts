@@ -44,6 +44,7 @@ const pick = <T extends string>(name: string, values: readonly T[]) =>
 /** Search parameters of /alerts. */
 export const alertsQuerySchema = z.object({
   site: z.preprocess(blankToUndefined, z.string().regex(SLUG, { error: 'site: not a site id (1 to 64 of a-z, 0-9 and -)' }).optional()),
+  unit: z.preprocess(blankToUndefined, z.string().regex(SLUG, { error: 'unit: not a unit id (1 to 64 of a-z, 0-9 and -)' }).optional()),
   severity: pick('severity', SEVERITIES),
   state: pick('state', LIST_STATES),
   condition: pick('condition', ALERT_CONDITIONS),
@@ -191,6 +192,7 @@ export async function readAlertsScreen({ db, viewer, nowMs, search }: { db: Db; 
       state: listState === 'active' ? 'active' : 'all',
       inState: listState === 'active' || listState === 'all' ? undefined : listState,
       siteId: query.site,
+      unitId: query.site ? query.unit : undefined,
       severity: query.severity,
       condition: query.condition,
       before: query.before ? parseAlertCursor(query.before) : undefined,
@@ -200,8 +202,9 @@ export async function readAlertsScreen({ db, viewer, nowMs, search }: { db: Db; 
   const apart = listState === 'active';
   const rows = apart ? views.filter((v) => v.state !== 'shelved') : views;
   const shelved = apart ? views.filter((v) => v.state === 'shelved') : [];
-  const where = query.site ? `site ${sites.find((s) => s.id === query.site)?.name ?? query.site}` : 'your sites';
-  const keep = { site: query.site, severity: query.severity, state: query.state, condition: query.condition };
+  const siteName = query.site ? `site ${sites.find((s) => s.id === query.site)?.name ?? query.site}` : undefined;
+  const where = siteName === undefined ? 'your sites' : query.unit ? `unit ${query.unit} of ${siteName}` : siteName;
+  const keep = { site: query.site, unit: query.site ? query.unit : undefined, severity: query.severity, state: query.state, condition: query.condition };
   return {
     query,
     problem,

@@ -8,6 +8,8 @@ import type { Db } from '@/db/client';
 import type { Viewer } from '@/lib/auth/viewer';
 import { SLUG } from '@/lib/contract/nameplate';
 import { requestContext } from '@/lib/request/context';
+import { getAlerts } from '@/lib/alerts/queries';
+import { alertRowView, alertsHref, type AlertRowView } from '@/lib/alerts/screen';
 import type { KeTrend } from '@/lib/diagnosis/trend';
 import {
   getUnitEmfView,
@@ -67,7 +69,7 @@ export function parseRange(rangeParam: string | string[] | undefined): { range: 
 }
 
 /** The unit screen for this request's viewer; undefined when there is no such unit on that site or the viewer may not see it. */
-export async function loadUnitScreen({ siteId, unitId, range }: { siteId: string; unitId: string; range: string | string[] | undefined }): Promise<UnitScreen | undefined> {
+export async function loadUnitScreen({ siteId, unitId, range }: { siteId: string; unitId: string; range: string | string[] | undefined }): Promise<UnitScreenWithAlerts | undefined> {
   if (!SLUG.test(siteId) || !SLUG.test(unitId)) return undefined;
   const { db, viewer, nowMs } = await requestContext();
   return readUnitScreen({ db, viewer, siteId, unitId, rangeParam: range, nowMs });
@@ -88,17 +90,29 @@ export async function readUnitScreen({
   unitId: string;
   rangeParam: string | string[] | undefined;
   nowMs: number;
-}): Promise<UnitScreen | undefined> {
+}): Promise<UnitScreenWithAlerts | undefined> {
   const view = await getUnitView({ db, viewer, siteId, unitId, nowMs });
   if (view === undefined) return undefined;
   const { range, problem } = parseRange(rangeParam);
-  const [emf, ke, series] = await Promise.all([
+  const [emf, ke, series, alerts] = await Promise.all([
     getUnitEmfView({ db, view, nowMs }),
     getUnitKeHistory({ db, view, nowMs }),
     getUnitSeries({ db, viewer, siteId, unitId, range, nowMs }),
+    getAlerts({ db, viewer, siteId, unitId, state: 'active', limit: UNIT_ALERTS_SHOWN }),
   ]);
   // The unit was just found for this viewer, so its series are there too.
-  return unitScreenOf({ view, emf, ke, series: series as UnitSeries, problem, nowMs });
+  return {
+    ...unitScreenOf({ view, emf, ke, series: series as UnitSeries, problem, nowMs }),
+    alerts: { rows: alerts.alerts.map((a) => alertRowView(a, viewer, nowMs)), allHref: alertsHref({ site: siteId, unit: unitId, state: 'all' }) },
+  };
+}
+
+/** Open alerts shown on the unit page (the list has the rest). */
+export const UNIT_ALERTS_SHOWN = 10;
+
+/** The unit screen with the unit's open alerts (those in the crews' list). */
+export interface UnitScreenWithAlerts extends UnitScreen {
+  readonly alerts: { readonly rows: AlertRowView[]; readonly allHref: string };
 }
 
 /** The view model from what the unit queries read: pure, so the panels' words and numbers are tested without a database. */

@@ -14,6 +14,7 @@ import { acknowledgeAlerts, shelveOneAlert } from '@/lib/alerts/changes';
 import { acknowledgeAlert, openAlert, type AlertLife } from '@/lib/alerts/lifecycle';
 import { countOpenAlertsBySite, getAlertById, getAlerts, getUnitAlerts } from '@/lib/alerts/queries';
 import { readAlertScreen, readAlertsScreen } from '@/lib/alerts/screen';
+import { readUnitScreen } from '@/lib/units/screen';
 import { insertAlert, updateAlert, type AlertOpening } from '@/lib/alerts/store';
 import { SAFETY_CAUTION } from '@/lib/diagnosis/findings';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
@@ -246,5 +247,18 @@ describe('GET /api/v1/alerts (contract sections 6 and 7)', () => {
     expect(other.status).toBe(404);
     expect(missing.status).toBe(404);
     expect(JSON.stringify(other.body).replace(siteA, 'S')).toBe(JSON.stringify(missing.body).replace('no-such-site', 'S'));
+  });
+});
+
+describe('one unit’s alerts', () => {
+  it('the list filters by unit within a site and keeps it in its links; the unit page shows that unit’s open alerts only', async () => {
+    const list = await readAlertsScreen({ db: t.handle.db, viewer: operator, nowMs: now, search: { site: siteA, unit: w2.id, state: 'all' } });
+    expect(list.rows.map((r) => Number(r.id))).toEqual([ids.offlineCleared]);
+    expect(list.summary).toMatch(new RegExp(`^1 alert for unit ${w2.id} of site `));
+    const unit = await readUnitScreen({ db: t.handle.db, viewer: crewA, siteId: siteA, unitId: w1.id, rangeParam: undefined, nowMs: now });
+    // w1's overspeed and stale Ke warning are open; its stator alert was taken and cleared, so it has left the crews' list.
+    expect(unit!.alerts.rows.map((r) => Number(r.id)).sort()).toEqual([ids.overspeed, ids.stale].sort());
+    expect(unit!.alerts.allHref).toBe(`/alerts?site=${siteA}&unit=${w1.id}&state=all`);
+    expect(await readUnitScreen({ db: t.handle.db, viewer: crewB, siteId: siteA, unitId: w1.id, rangeParam: undefined, nowMs: now })).toBeUndefined();
   });
 });

@@ -25,6 +25,7 @@ export function AlertFilter({ query, options, filtered }: Pick<AlertsScreen, 'qu
   );
   return (
     <form method="get" action="/alerts" className={styles.filters} aria-label="Filter">
+      {query.unit ? <input type="hidden" name="unit" value={query.unit} /> : null}
       {select('site', 'Site', 'All your sites', options.sites)}
       {select('severity', 'Severity', 'Any severity', options.severities)}
       {select('state', 'State', undefined, options.states)}

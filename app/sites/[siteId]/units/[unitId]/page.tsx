@@ -2,6 +2,7 @@ import type { Metadata } from 'next';
 import { notFound } from 'next/navigation';
 import { Breadcrumbs } from '@/app/_components/breadcrumbs';
 import { loadUnitScreen } from '@/lib/units/screen';
+import { AlertsPanel } from './_components/alerts-panel';
 import { EmfPanel } from './_components/emf-panel';
 import { FindingsPanel } from './_components/findings-panel';
 import { KePanel } from './_components/ke-panel';
@@ -33,6 +34,7 @@ export default async function UnitPage({ params, searchParams }: Props) {
       <Breadcrumbs trail={[{ label: 'Fleet', href: '/' }, { label: site.name, href: `/sites/${site.id}` }, { label: unit.id }]} />
       <UnitHead site={site} unit={unit} head={screen.head} timeZone={timeZone} nowMs={nowMs} />
       <FindingsPanel findings={screen.findings} timeZone={timeZone} nowMs={nowMs} />
+      <AlertsPanel alerts={screen.alerts} timeZone={timeZone} nowMs={nowMs} />
       <EmfPanel emf={screen.emf} timeZone={timeZone} nowMs={nowMs} />
       <KePanel ke={screen.ke} timeZone={timeZone} />
       <SeriesPanel series={screen.series} timeZone={timeZone} />
