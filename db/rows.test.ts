@@ -1,4 +1,5 @@
 /** Raw SQL rows parsed by the schema beside their statement, from either driver's shape. */
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { z } from 'zod';
 import { isAppError } from '@/lib/errors/app-error';
@@ -27,5 +28,23 @@ describe('rows', () => {
       expect((error as Error).message).toMatch(/^latest units: row 2, column key: /);
     }
     expect(() => parseRows('t', schema, [{ key: 1, limits: null }])).toThrow(/row 1, column kw/);
+  });
+
+  it('the compiled parser accepts exactly what the interpreter accepts, with the same values (zod itself as the reference)', () => {
+    const cell = fc.oneof(fc.double({ noNaN: true }), fc.integer().map(String), fc.constant('1.5e3'), fc.constant('x'), fc.constant(null), fc.constant('{"keAlarmRatio":0.9}'), fc.constant('{"keAlarmRatio":"no"}'));
+    fc.assert(
+      fc.property(fc.record({ key: cell, kw: cell, limits: cell }), (row) => {
+        const interpreted = schema.safeParse(row);
+        let compiled: unknown[] | undefined;
+        try {
+          compiled = parseRows('t', schema, [row]);
+        } catch {
+          compiled = undefined;
+        }
+        expect(compiled !== undefined).toBe(interpreted.success);
+        if (interpreted.success) expect(compiled).toEqual([interpreted.data]);
+      }),
+      { numRuns: 500 },
+    );
   });
 });

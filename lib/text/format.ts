@@ -7,13 +7,25 @@
 /** What a missing reading shows as. */
 export const MISSING = '–';
 
+const formats = new Map<number, Intl.NumberFormat>();
+
+/** One formatter per number of decimals: making an Intl.NumberFormat costs far more than using one (a table formats hundreds). */
+function numberFormat(digits: number): Intl.NumberFormat {
+  let f = formats.get(digits);
+  if (f === undefined) {
+    f = new Intl.NumberFormat('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits });
+    formats.set(digits, f);
+  }
+  return f;
+}
+
 /**
  * A number with `digits` decimals and its unit, or an en dash when missing.
  * @example formatNumber(1234.5, 1, 'kW') // '1,234.5 kW'
  */
 export function formatNumber(value: number | null | undefined, digits = 0, unit?: string): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return MISSING;
-  const text = value.toLocaleString('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits });
+  const text = numberFormat(digits).format(value);
   return unit ? `${text}\u202f${unit}` : text;
 }
 
