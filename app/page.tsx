@@ -40,7 +40,7 @@ export default async function FleetPage() {
       ) : (
         <div className="grid">
           {fleet.sites.map((site) => (
-            <SiteCard key={site.id} site={site} now={now} />
+            <SiteCard key={site.id} site={site} now={now} alerts={fleet.alerts[site.id]} />
           ))}
         </div>
       )}

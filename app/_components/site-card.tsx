@@ -5,6 +5,7 @@
  * and leaves out what a glance from across the room does not need.
  */
 import type { FleetSite } from '@/lib/fleet/queries';
+import type { SiteAlertsView } from '@/lib/fleet/screen';
 import { ago, formatEnergyKwh, formatPowerKw } from '@/lib/text/format';
 import { LocalTime } from '@/app/_components/local-time';
 import { StateBadge, StateCounts } from '@/app/_components/state-badge';
@@ -82,7 +83,7 @@ function DisplayCard({ site }: { site: FleetSite }) {
   );
 }
 
-export function SiteCard({ site, now, linked = true }: { site: FleetSite; now: Date; linked?: boolean }) {
+export function SiteCard({ site, now, linked = true, alerts }: { site: FleetSite; now: Date; linked?: boolean; alerts?: SiteAlertsView }) {
   if (!linked) return <DisplayCard site={site} />;
   return (
     <section
@@ -106,6 +107,12 @@ export function SiteCard({ site, now, linked = true }: { site: FleetSite; now: D
             <OldestSample site={site} now={now} />
           </dd>
         </div>
+        {alerts ? (
+          <div>
+            <dt>Open alerts</dt>
+            <dd data-testid="site-alerts">{alerts.open === 0 ? alerts.text : <a href={alerts.href}>{alerts.text}</a>}</dd>
+          </div>
+        ) : null}
       </Figures>
       <Attention site={site} />
     </section>

@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_LIMITS, resolveLimits, unbalanceIsAlarm } from '@/lib/diagnosis/limits';
-import { setAsideCount, sortHref } from './screen';
+import { setAsideCount, siteAlertsView, sortHref } from './screen';
 import { QUARANTINE_COUNT_CAP } from '@/lib/quality/queries';
 
 describe('site screen', () => {
@@ -28,5 +28,12 @@ describe('site screen', () => {
     expect(setAsideCount(12)).toBe('12');
     expect(setAsideCount(QUARANTINE_COUNT_CAP)).toBe(QUARANTINE_COUNT_CAP.toLocaleString('en-GB'));
     expect(setAsideCount(QUARANTINE_COUNT_CAP + 1)).toBe(`more than ${QUARANTINE_COUNT_CAP.toLocaleString('en-GB')}`);
+  });
+
+  it('a site’s open alerts in words, linking to the list filtered to the site', () => {
+    expect(siteAlertsView('north', undefined)).toEqual({ open: 0, alarms: 0, text: 'none', href: '/alerts?site=north' });
+    expect(siteAlertsView('north', { open: 3, alarms: 1 }).text).toBe('3 (1 alarm)');
+    expect(siteAlertsView('north', { open: 2, alarms: 2 }).text).toBe('2 (2 alarms)');
+    expect(siteAlertsView('north', { open: 4, alarms: 0 }).text).toBe('4');
   });
 });

@@ -12,6 +12,8 @@ import { resolveLimits, unbalanceIsAlarm } from '@/lib/diagnosis/limits';
 import { currentDemoStatus, type DemoStatus } from '@/lib/fleet/demo-status';
 import { sinceText, UNIT_STATE_NAME, UNIT_STATES, type UnitState } from '@/lib/fleet/unit-state';
 import { databaseOnly, requestContext } from '@/lib/request/context';
+import { countOpenAlertsBySite, type SiteAlertCount } from '@/lib/alerts/queries';
+import { alertsHref } from '@/lib/alerts/screen';
 import { getFleetSites, getSiteView, type FleetSite, type SiteView } from './queries';
 import { getQuarantineSummary, QUARANTINE_COUNT_CAP, type QuarantineSummary } from '@/lib/quality/queries';
 import { parseSiteTableParams, SITE_SORTS, sortSiteUnits, type SiteSort, type SiteTableParams } from './site-table';
@@ -31,6 +33,25 @@ export interface FleetScreen {
   readonly totals: Record<UnitState, number>;
   readonly unitCount: number;
   readonly attention: number;
+  /** Open alerts of each site (in the crews' list, not shelved), in words, with the list's address. */
+  readonly alerts: Record<string, SiteAlertsView>;
+}
+
+/** A site's open alerts as its card and page show them. */
+export interface SiteAlertsView {
+  readonly open: number;
+  readonly alarms: number;
+  /** "none", "3 (1 alarm)". */
+  readonly text: string;
+  readonly href: string;
+}
+
+/** The words and link of a site's open alerts. */
+export function siteAlertsView(siteId: string, count: Pick<SiteAlertCount, 'open' | 'alarms'> | undefined): SiteAlertsView {
+  const open = count?.open ?? 0;
+  const alarms = count?.alarms ?? 0;
+  const text = open === 0 ? 'none' : `${open}${alarms > 0 ? ` (${alarms} alarm${alarms === 1 ? '' : 's'})` : ''}`;
+  return { open, alarms, text, href: alertsHref({ site: siteId }) };
 }
 
 /** The fleet page's note of telemetry set aside: counts as words, the newest entries with their age. */
@@ -65,7 +86,12 @@ export async function loadFleetScreen(): Promise<FleetScreen> {
 /** The fleet screen's data; the bench times exactly this. */
 export async function readFleetScreen({ db, viewer, nowMs }: { db: Db; viewer: Viewer; nowMs: number }): Promise<FleetScreen> {
   const seesAll = siteFilter(viewer) === undefined;
-  const [sites, quarantine] = await Promise.all([getFleetSites({ db, viewer, nowMs }), seesAll ? getQuarantineSummary({ db }) : undefined]);
+  const [sites, quarantine, alertCounts] = await Promise.all([
+    getFleetSites({ db, viewer, nowMs }),
+    seesAll ? getQuarantineSummary({ db }) : undefined,
+    countOpenAlertsBySite({ db, viewer }),
+  ]);
+  const countOf = new Map(alertCounts.map((c) => [c.siteId, c]));
   const totals = Object.fromEntries(UNIT_STATES.map((s) => [s, sites.reduce((n, site) => n + site.counts[s], 0)])) as Record<UnitState, number>;
   const unitCount = sites.reduce((n, s) => n + s.unitCount, 0);
   return {
@@ -78,6 +104,7 @@ export async function readFleetScreen({ db, viewer, nowMs }: { db: Db; viewer: V
     totals,
     unitCount,
     attention: unitCount - totals.healthy,
+    alerts: Object.fromEntries(sites.map((site) => [site.id, siteAlertsView(site.id, countOf.get(site.id))])),
   };
 }
 
@@ -102,6 +129,7 @@ export interface SiteScreen {
   readonly filtered: boolean;
   /** Start of the sparklines' window, ms. */
   readonly sparkFromMs: number;
+  readonly alerts: SiteAlertsView;
   readonly params: SiteTableParams;
   /** Search parameters that could not be used, each naming the parameter. */
   readonly problems: string[];
@@ -145,6 +173,7 @@ export async function readSiteScreen({
   if (site === undefined) return undefined;
   const { params, problems } = parseSiteTableParams(search);
   const rows = sortSiteUnits(site.units, params).map(rowView);
+  const alertCount = (await countOpenAlertsBySite({ db, viewer })).find((c) => c.siteId === siteId);
   const total = site.units.length;
   return {
     site,
@@ -153,6 +182,7 @@ export async function readSiteScreen({
     sortHrefs: Object.fromEntries(SITE_SORTS.map((s) => [s, sortHref(params, s)])) as Record<SiteSort, string>,
     filtered: params.state !== 'all' || params.sort !== 'state' || params.dir !== 'asc',
     sparkFromMs: nowMs - site.sparkHours * 3_600_000,
+    alerts: siteAlertsView(siteId, alertCount),
     params,
     problems,
     nowMs,

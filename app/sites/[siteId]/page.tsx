@@ -30,6 +30,9 @@ export default async function SitePage({ params, searchParams }: Props) {
           <p className="note">
             Local time at the site: <LocalTime time={now} timeZone={site.timezone} now={now} /> · times below are the site&apos;s own
           </p>
+          <p className="note" data-testid="site-alerts">
+            Open alerts: {screen.alerts.open === 0 ? screen.alerts.text : <a href={screen.alerts.href}>{screen.alerts.text}</a>}
+          </p>
         </div>
         <LiveUpdates siteId={site.id} unitNames={Object.fromEntries(site.units.map((u) => [u.id, u.name ?? u.id]))} />
       </div>
