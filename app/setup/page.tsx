@@ -38,6 +38,11 @@ export default async function SetupPage() {
             Download FLEET.json
           </a>
         </li>
+        <li>
+          <a className="button" href="/setup/webhooks">
+            Webhooks
+          </a>
+        </li>
       </ul>
       {!editable ? <p className="note">Your role may look at the setup but not change it.</p> : null}
       {sites.length === 0 ? (

@@ -16,6 +16,7 @@ import { formOfNameplate } from '@/lib/setup/forms';
 import { createTestDatabase, type TestDatabase } from '@/test/support/backend';
 import { openAlert } from '@/lib/alerts/lifecycle';
 import { insertAlert } from '@/lib/alerts/store';
+import { insertWebhookEndpoint } from '@/lib/alerts/webhooks/queries';
 import { queryRows, testFleet, testTag } from '@/test/support/ingest';
 
 const state = vi.hoisted(() => ({ viewer: undefined as Viewer | undefined }));
@@ -106,6 +107,7 @@ let targetId = 0;
 let tokenId = 0;
 let linkId = 0;
 let alertId = 0;
+let webhookId = 0;
 
 /** Each action: how to call it, and what each caller gets. */
 const TABLE: Record<string, { expect: Record<Caller, Outcome>; call: (fn: (...args: unknown[]) => Promise<unknown>) => Promise<unknown> }> = {
@@ -138,6 +140,12 @@ const TABLE: Record<string, { expect: Record<Caller, Outcome>; call: (fn: (...ar
   },
   'setup/device-actions.ts#issueDeviceCredentialsAction': { expect: SETUP, call: (fn) => fn({ siteId: siteA, unitId: unitA.id }, { submitted: 0 }) },
   'setup/device-actions.ts#deviceCredentialsAction': { expect: SETUP, call: (fn) => fn({ siteId: siteA, unitId: unitA.id }, { submitted: 0 }, form({ intent: 'revoke' })) },
+  'setup/webhook-actions.ts#addWebhookEndpointAction': {
+    expect: SETUP,
+    call: (fn) => fn({ submitted: 0 }, form({ url: `https://hooks.test.invalid/in-${next()}`, siteId: '', minSeverity: 'warning' })),
+  },
+  // The operator disables it first, the admin again after: both done.
+  'setup/webhook-actions.ts#disableWebhookEndpointAction': { expect: SETUP, call: (fn) => fn(webhookId, { submitted: 0 }) },
   'alerts/actions.ts#acknowledgeAlertsAction': { expect: ALERTS, call: (fn) => fn({ submitted: 0 }, form({ alertId: String(alertId), note: 'Going up to look.' })) },
   'alerts/actions.ts#shelveAlertAction': { expect: ALERTS, call: (fn) => fn(alertId, { submitted: 0 }, form({ reason: 'Planned work on the unit', for: '8h' })) },
   // Open to anyone by design: signing in, signing out (ends only the caller's own session).
@@ -179,6 +187,9 @@ beforeAll(async () => {
   const [unitRow] = await queryRows<{ key: number }>(t.handle, 'select key from units where id = $1', [unitA.id]);
   const opening = { unitKey: Number(unitRow!.key), condition: 'overspeed', severity: 'alarm', message: 'Speed reached 430 rpm.', value: 430, limit: 420 } as const;
   alertId = (await insertAlert({ db: t.handle.db, opening, step: openAlert(Date.now()), nowMs: Date.now() }))!.id;
+  const endpoint = await insertWebhookEndpoint({ db: t.handle.db, url: 'https://hooks.test.invalid/disable-me', siteId: null, minSeverity: 'alarm', createdBy: 'test' });
+  if (!endpoint.ok) throw new Error(JSON.stringify(endpoint.fieldErrors));
+  webhookId = endpoint.endpoint.id;
 }, 60_000);
 
 afterAll(async () => {

@@ -23,6 +23,7 @@ import { createDisplayLink } from '@/lib/auth/display-links';
 import { getPersonByEmail } from '@/lib/auth/people';
 import { openAlert } from '@/lib/alerts/lifecycle';
 import { insertAlert } from '@/lib/alerts/store';
+import { insertWebhookEndpoint } from '@/lib/alerts/webhooks/queries';
 import { addTestAccount, type TestAccount } from '@/test/support/accounts';
 import { testFleet, testTag } from '@/test/support/ingest';
 import { startProductProcess, type RunningProduct } from '@/test/support/product';
@@ -96,6 +97,8 @@ const TABLE: Record<string, Array<{ url: () => string; expect: Expect }>> = {
   ],
   '/setup/import': [{ url: () => '/setup/import', expect: SETUP_WRITE }],
   '/setup/export': [{ url: () => '/setup/export', expect: ALL_OK }],
+  // Linked from Setup for everyone; only admins and operators see the endpoints (checked below).
+  '/setup/webhooks': [{ url: () => '/setup/webhooks', expect: ALL_OK }],
   '/data-quality': [{ url: () => '/data-quality', expect: ALL_OK }],
   '/alerts': [{ url: () => '/alerts', expect: ALL_OK }],
   '/alerts/[alertId]': [
@@ -171,6 +174,8 @@ beforeAll(async () => {
     const [unitRow] = await handle.db.select({ key: units.key }).from(units).where(eq(units.id, unitA.id));
     const opening = { unitKey: unitRow!.key, condition: 'overspeed', severity: 'alarm', message: 'Speed reached 430 rpm.', value: 430, limit: 420 } as const;
     alertA = (await insertAlert({ db: handle.db, opening, step: openAlert(Date.now()), nowMs: Date.now() }))!.id;
+    const hook = await insertWebhookEndpoint({ db: handle.db, url: `https://hooks.test.invalid/${tag}?key=kept-out`, siteId: null, minSeverity: 'alarm', createdBy: 'test' });
+    if (!hook.ok) throw new Error(JSON.stringify(hook.fieldErrors));
   } finally {
     await handle.close();
   }
@@ -214,6 +219,15 @@ describe('what a caller may not see', () => {
       const page = await request(url, 'owner');
       expect(page.status, url).toBe(404);
       expect(page.body, url).not.toContain(siteA.name);
+    }
+  });
+
+  it('shows the webhook endpoints to admins and operators only', async () => {
+    for (const caller of ['admin', 'operator'] as Caller[]) expect((await request('/setup/webhooks', caller)).body, caller).toContain(`hooks.test.invalid/${tag}`);
+    for (const caller of ['crew', 'owner'] as Caller[]) {
+      const body = (await request('/setup/webhooks', caller)).body;
+      expect(body, caller).not.toContain('hooks.test.invalid');
+      expect(body, caller).toContain('Only an administrator or operator may see and manage the webhook endpoints.');
     }
   });
 

@@ -20,7 +20,7 @@ export interface DeviceAccountView {
 
 const when = (iso: string) => <time dateTime={iso}>{new Date(iso).toISOString().replace('T', ' ').slice(0, 16)} UTC</time>;
 
-function CopyButton({ text, label }: { text: string; label: string }) {
+export function CopyButton({ text, label }: { text: string; label: string }) {
   const [state, setState] = useState<'idle' | 'copied' | 'failed'>('idle');
   return (
     <>
