@@ -147,7 +147,14 @@ function fetchErrorWords(error: unknown, timeoutMs: number): string {
 async function attempt({ claimed, fetchImpl, timestampS, timeoutMs, stopSignal }: { claimed: Claimed; fetchImpl: typeof fetch; timestampS: number; timeoutMs: number; stopSignal: AbortSignal }): Promise<Outcome> {
   const started = performance.now();
   const elapsed = () => Math.round(performance.now() - started);
-  const signal = AbortSignal.any([AbortSignal.timeout(timeoutMs), stopSignal]);
+  // A timer of our own rather than AbortSignal.timeout inside AbortSignal.any: Node 20 can collect
+  // such a timeout signal while the request waits, and then the attempt never times out (seen here).
+  const controller = new AbortController();
+  const timer = setTimeout(() => controller.abort(new DOMException('timed out', 'TimeoutError')), timeoutMs);
+  const onStop = () => controller.abort(stopSignal.reason);
+  if (stopSignal.aborted) onStop();
+  else stopSignal.addEventListener('abort', onStop, { once: true });
+  const signal = controller.signal;
   try {
     const headers = webhookHeaders({ secret: claimed.secret, id: claimed.messageId, timestampS, body: claimed.body });
     // No redirects: a signed message goes to the address its owner registered, nowhere else.
@@ -162,6 +169,9 @@ async function attempt({ claimed, fetchImpl, timestampS, timeoutMs, stopSignal }
   } catch (error) {
     if (stopSignal.aborted) return { status: null, error: 'cut short: the process stopped', durationMs: elapsed(), interrupted: true };
     return { status: null, error: fetchErrorWords(error, timeoutMs), durationMs: elapsed(), interrupted: false };
+  } finally {
+    clearTimeout(timer);
+    stopSignal.removeEventListener('abort', onStop);
   }
 }
 
