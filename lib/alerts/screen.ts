@@ -31,7 +31,7 @@ const blankToUndefined = (v: string | undefined) => (v === undefined || v === ''
 export const LIST_STATES = ['active', 'all', 'acknowledged', 'shelved', 'cleared'] as const;
 export type ListState = (typeof LIST_STATES)[number];
 const LIST_STATE_LABEL: Record<ListState, string> = {
-  active: "Crews' list (open, or cleared and not yet acknowledged)",
+  active: "Crews' list: open, or not yet taken",
   all: 'All, history included',
   acknowledged: 'Acknowledged only',
   shelved: 'Shelved only',
