@@ -22,6 +22,7 @@ import { openAlert, stepAlert } from './lifecycle';
 import { CONDITION_TIMING, DEFAULT_ALERT_LIMITS, type AlertLimits } from './limits';
 import { alertLifeOf, getOpenAlerts, insertAlert, updateAlert } from './store';
 import type { UnitAlertRow } from '@/db/schema';
+import { repeatEvery } from '@/lib/timing/repeat';
 
 /** Seconds between evaluations (common practice: fast enough for an overspeed, light on the database). */
 export const EVALUATE_EVERY_S = 15;
@@ -225,30 +226,18 @@ export function startAlertEvaluator({
   onChanges?: () => void;
 }): () => Promise<void> {
   if (!(intervalS > 0)) throw new RangeError(`intervalS must be above 0, got ${intervalS}`);
-  let stopped = false;
-  let timer: NodeJS.Timeout | undefined;
-  let inFlight: Promise<void> | undefined;
-  const pass = async () => {
-    try {
-      const r = await evaluateAlerts({ db, nowMs: clock(), baseUrl, live });
-      if (r.opened + r.changed > 0) {
-        log.info('alert evaluation', { ...r });
-        onChanges?.();
+  return repeatEvery(
+    () => intervalS * 1000,
+    async () => {
+      try {
+        const r = await evaluateAlerts({ db, nowMs: clock(), baseUrl, live });
+        if (r.opened + r.changed > 0) {
+          log.info('alert evaluation', { ...r });
+          onChanges?.();
+        }
+      } catch (error) {
+        log.error('alert evaluation failed', { error });
       }
-    } catch (error) {
-      log.error('alert evaluation failed', { error });
-    }
-    if (!stopped) timer = setTimeout(run, intervalS * 1000);
-  };
-  const run = () => {
-    inFlight = pass().finally(() => {
-      inFlight = undefined;
-    });
-  };
-  run();
-  return async () => {
-    stopped = true;
-    if (timer !== undefined) clearTimeout(timer);
-    await inFlight;
-  };
+    },
+  );
 }

@@ -26,6 +26,7 @@ import {
 } from './queries';
 import { SampleColumns } from './sample-columns';
 import { keTrend } from './trend';
+import { repeatEvery } from '@/lib/timing/repeat';
 
 /** Most samples read per unit and window: 6 h at one a second, with room (bounds memory and time). */
 export const DEFAULT_MAX_SAMPLES = 25_000;
@@ -214,36 +215,23 @@ export interface DiagnosisWorkerOptions {
 export function startDiagnosisWorker(options: DiagnosisWorkerOptions): () => Promise<void> {
   if (!(options.intervalS > 0)) throw new RangeError(`intervalS must be above 0, got ${options.intervalS}`);
   if (!(options.windowHours > 0)) throw new RangeError(`windowHours must be above 0, got ${options.windowHours}`);
-  let stopped = false;
-  let timer: NodeJS.Timeout | undefined;
-  let inFlight: Promise<void> | undefined;
-  const pass = async () => {
-    const started = Date.now();
-    try {
-      const r = await runDiagnosisPass({
-        db: options.db,
-        windowHours: options.windowHours,
-        maxSamples: options.maxSamples,
-        historyEveryS: options.historyEveryS,
-        log: options.log,
-        live: options.live,
-      });
-      if (r.units > 0) options.log.info('diagnosis pass', { ...r });
-      else options.log.debug('diagnosis pass: no unit due', { elapsedMs: r.elapsedMs });
-    } catch (error) {
-      options.log.error('diagnosis pass failed', { error });
-    }
-    if (!stopped) timer = setTimeout(run, Math.max(0, options.intervalS * 1000 - (Date.now() - started)));
-  };
-  const run = () => {
-    inFlight = pass().finally(() => {
-      inFlight = undefined;
-    });
-  };
-  run();
-  return async () => {
-    stopped = true;
-    if (timer !== undefined) clearTimeout(timer);
-    await inFlight;
-  };
+  return repeatEvery(
+    (elapsedMs) => options.intervalS * 1000 - elapsedMs,
+    async () => {
+      try {
+        const r = await runDiagnosisPass({
+          db: options.db,
+          windowHours: options.windowHours,
+          maxSamples: options.maxSamples,
+          historyEveryS: options.historyEveryS,
+          log: options.log,
+          live: options.live,
+        });
+        if (r.units > 0) options.log.info('diagnosis pass', { ...r });
+        else options.log.debug('diagnosis pass: no unit due', { elapsedMs: r.elapsedMs });
+      } catch (error) {
+        options.log.error('diagnosis pass failed', { error });
+      }
+    },
+  );
 }

@@ -10,8 +10,7 @@ import { getConfig } from '@/lib/config/env';
 import { createLogger } from '@/lib/log/logger';
 import { heapProblem } from './heap';
 import { startIngester } from './ingester';
-import { startAlertEvaluator } from '@/lib/alerts/evaluator';
-import { startWebhookDelivery } from '@/lib/alerts/webhooks/deliver';
+import { startAlertWorkers } from '@/lib/alerts/workers';
 import { startDiagnosisWorker } from '@/lib/diagnosis/worker';
 import { createLivePublisher } from '@/lib/live/publisher';
 
@@ -65,16 +64,8 @@ async function main(): Promise<number> {
     live,
   });
   // Alerts are evaluated beside the diagnosis, on what it and the ingester wrote.
-  const webhooks = startWebhookDelivery({ db: handle.db, log: log.child('webhooks'), pollMs: 1_000 });
-  const stopAlerts = startAlertEvaluator({
-    db: handle.db,
-    intervalS: config.ALERT_INTERVAL_S,
-    baseUrl: config.PUBLIC_URL,
-    log: log.child('alerts'),
-    live,
-    onChanges: () => webhooks.kick(),
-  });
-  const stopWorkers = () => Promise.all([stopDiagnosis(), stopAlerts().then(() => webhooks.stop())]);
+  const stopAlerts = startAlertWorkers({ db: handle.db, config, log, live });
+  const stopWorkers = () => Promise.all([stopDiagnosis(), stopAlerts()]);
   ingester.ready().catch(async () => {
     await stopWorkers();
     // The pool logged why (a refused subscription); nothing can be ingested.

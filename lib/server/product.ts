@@ -95,19 +95,8 @@ async function startPipeline(config: Config, handle: DatabaseHandle, log: Logger
   });
   stack.push({ name: 'diagnosis', stop: async () => diagnosis() });
 
-  const { startAlertEvaluator } = await import('@/lib/alerts/evaluator');
-  const { startWebhookDelivery } = await import('@/lib/alerts/webhooks/deliver');
-  const webhooks = startWebhookDelivery({ db: handle.db, log: log.child('webhooks'), pollMs: 1_000 });
-  stack.push({ name: 'webhooks', stop: () => webhooks.stop() });
-  const alerts = startAlertEvaluator({
-    db: handle.db,
-    intervalS: config.ALERT_INTERVAL_S,
-    baseUrl: config.PUBLIC_URL,
-    log: log.child('alerts'),
-    live,
-    onChanges: () => webhooks.kick(),
-  });
-  stack.push({ name: 'alerts', stop: alerts });
+  const { startAlertWorkers } = await import('@/lib/alerts/workers');
+  stack.push({ name: 'alerts', stop: startAlertWorkers({ db: handle.db, config, log, live }) });
 
   if (config.DEMO) await startDemo(config, handle, brokerUrl, log, stack, embedded);
   else {
