@@ -3,35 +3,20 @@
  * runs them (the bin, a data folder of their own): printed once, JSON on
  * --json, files Mosquitto reads, and refusals in words.
  */
-import { execFile } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { runMillrace } from '@/test/support/cli';
 import { testFleet, testTag } from '@/test/support/ingest';
 import { verifyPassword } from '@/lib/devices/credentials';
 
-const run = promisify(execFile);
-const bin = fileURLToPath(new URL('../../bin/millrace.mjs', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'millrace-device-cli-'));
 const fleet = testFleet(testTag(), { windUnits: 2, hydroUnits: 0 });
 const [u1, u2] = fleet.units as [(typeof fleet.units)[0], (typeof fleet.units)[0]];
 
-async function millrace(args: string[], env: Record<string, string> = {}): Promise<{ status: number; out: string; err: string }> {
-  const childEnv: NodeJS.ProcessEnv = { ...process.env, DATA_DIR: join(dir, 'data'), LOG_LEVEL: 'warn', ...env };
-  delete childEnv.DATABASE_URL;
-  if (!env.MQTT_USERNAME) delete childEnv.MQTT_USERNAME;
-  if (!env.MQTT_PASSWORD) delete childEnv.MQTT_PASSWORD;
-  try {
-    const { stdout, stderr } = await run(process.execPath, [bin, ...args], { env: childEnv });
-    return { status: 0, out: stdout, err: stderr };
-  } catch (error) {
-    const e = error as { code: number; stdout: string; stderr: string };
-    return { status: e.code, out: e.stdout, err: e.stderr };
-  }
-}
+/** The bin with this test's data folder; the ingesters' broker account only when a test gives it. */
+const millrace = (args: string[], env: Record<string, string> = {}) => runMillrace(args, join(dir, 'data'), { MQTT_USERNAME: '', MQTT_PASSWORD: '', ...env });
 
 beforeAll(async () => {
   const file = join(dir, 'FLEET.json');

@@ -5,34 +5,20 @@
  * refusals that name the option. The secret is checked with the
  * `standardwebhooks` library (the Standard Webhooks reference verifier).
  */
-import { execFile } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-import { promisify } from 'node:util';
 import { Webhook } from 'standardwebhooks';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { webhookHeaders } from '@/lib/alerts/webhooks/sign';
+import { runMillrace } from '@/test/support/cli';
 import { testFleet, testTag } from '@/test/support/ingest';
 
-const run = promisify(execFile);
-const bin = fileURLToPath(new URL('../../bin/millrace.mjs', import.meta.url));
 const dir = mkdtempSync(join(tmpdir(), 'millrace-webhook-cli-'));
 const fleet = testFleet(testTag(), { windUnits: 1, hydroUnits: 0 });
 const siteId = fleet.sites[0]!.id;
 
-async function millrace(args: string[]): Promise<{ status: number; out: string; err: string }> {
-  const env: NodeJS.ProcessEnv = { ...process.env, DATA_DIR: join(dir, 'data'), LOG_LEVEL: 'warn' };
-  delete env.DATABASE_URL;
-  try {
-    const { stdout, stderr } = await run(process.execPath, [bin, ...args], { env });
-    return { status: 0, out: stdout, err: stderr };
-  } catch (error) {
-    const e = error as { code: number; stdout: string; stderr: string };
-    return { status: e.code, out: e.stdout, err: e.stderr };
-  }
-}
+const millrace = (args: string[]) => runMillrace(args, join(dir, 'data'));
 
 beforeAll(async () => {
   const file = join(dir, 'FLEET.json');
