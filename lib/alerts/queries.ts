@@ -173,12 +173,12 @@ export interface SiteAlertCount {
 }
 
 /** Open alerts per site of the viewer's (sites with none are left out), for the fleet and site pages. */
-export async function countOpenAlertsBySite({ db, viewer }: { db: Db; viewer: Viewer }): Promise<SiteAlertCount[]> {
+export async function countOpenAlertsBySite({ db, viewer, siteId }: { db: Db; viewer: Viewer; siteId?: string }): Promise<SiteAlertCount[]> {
   const rows = await db
     .select({ siteId: units.siteId, state: unitAlerts.state, severity: unitAlerts.severity, n: count() })
     .from(unitAlerts)
     .innerJoin(units, eq(units.key, unitAlerts.unitKey))
-    .where(and(inCrewListClause(), viewerSites(viewer)))
+    .where(and(inCrewListClause(), viewerSites(viewer), siteId === undefined ? undefined : eq(units.siteId, siteId)))
     .groupBy(units.siteId, unitAlerts.state, unitAlerts.severity);
   const bySite = new Map<string, { open: number; alarms: number; shelved: number }>();
   for (const r of rows) {

@@ -7,7 +7,7 @@
  */
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Db } from '@/db/client';
-import { sites, unitAlertEvents, unitAlerts, units, type UnitAlertRow } from '@/db/schema';
+import { unitAlertEvents, unitAlerts, units, type UnitAlertRow } from '@/db/schema';
 import type { AlertObject, WebhookType } from '@/lib/contract/alerts';
 import { enqueueWebhookMessages } from '@/lib/alerts/webhooks/queries';
 import type { AlertChange, AlertLife, AlertStep } from './lifecycle';
@@ -81,11 +81,7 @@ export interface ChangeActor {
 
 /** Records the changes of a step on a locked row: events, then one webhook message per change. */
 async function recordChanges(tx: Db, row: UnitAlertRow, changes: readonly AlertChange[], actor: ChangeActor, nowMs: number, baseUrl: string): Promise<void> {
-  const [ids] = await tx
-    .select({ siteId: units.siteId, unitId: units.id })
-    .from(units)
-    .innerJoin(sites, eq(sites.id, units.siteId))
-    .where(eq(units.key, row.unitKey));
+  const [ids] = await tx.select({ siteId: units.siteId, unitId: units.id }).from(units).where(eq(units.key, row.unitKey));
   for (const change of changes) {
     await tx.insert(unitAlertEvents).values({
       alertId: row.id,

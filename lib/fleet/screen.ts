@@ -169,11 +169,10 @@ export async function readSiteScreen({
   search: Record<string, string | string[] | undefined>;
   nowMs: number;
 }): Promise<SiteScreen | undefined> {
-  const site = await getSiteView({ db, viewer, siteId, nowMs });
+  const [site, [alertCount]] = await Promise.all([getSiteView({ db, viewer, siteId, nowMs }), countOpenAlertsBySite({ db, viewer, siteId })]);
   if (site === undefined) return undefined;
   const { params, problems } = parseSiteTableParams(search);
   const rows = sortSiteUnits(site.units, params).map(rowView);
-  const alertCount = (await countOpenAlertsBySite({ db, viewer })).find((c) => c.siteId === siteId);
   const total = site.units.length;
   return {
     site,
